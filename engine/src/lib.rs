@@ -1,0 +1,16 @@
+//! `sprung-engine`: everything between the syntax tree and the results.
+//!
+//! Owns the unit registry and dimensional analysis ([`units`], [`dim`]), name resolution and
+//! expression evaluation with tolerances ([`check`], [`formula`]), the checked model
+//! ([`model`]) and diagnostics as plain data ([`diagnostics`]). It must not print, read files
+//! beyond the text it is given, or depend on tokio or the LSP.
+
+pub mod check;
+pub mod diagnostics;
+pub mod dim;
+pub mod formula;
+pub mod model;
+pub mod units;
+
+pub use check::{Checked, check};
+pub use diagnostics::{Code, Diagnostic, Label, Severity};
