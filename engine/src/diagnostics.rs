@@ -170,6 +170,11 @@ catalogue! {
          needs its own.";
     KeywordAsName = "SP209", Error, "keyword used as a name",
         "Keywords are reserved and cannot name a value or element.";
+    NotAValue = "SP210", Error, "name has no value",
+        "A name used in an expression must stand for a value: a `let`, a mass or inertia (its \
+         mass), a spring or damper (its coefficient). A drive has an amplitude and a frequency \
+         rather than one value, so it cannot be used in an expression; put the amount in a \
+         `let` and use that in both places.";
 
     // 3xx: units and dimensions.
     UnknownUnit = "SP301", Error, "unknown unit",
@@ -236,6 +241,8 @@ catalogue! {
     UnusedUse = "SP412", Warning, "`use` is not supported yet",
         "`use \"path\"` (sharing top-level `let`s between files) is read but not yet acted on; \
          names it would bring in are unknown.";
+    EmptyBand = "SP413", Error, "drive band is empty or reversed",
+        "A band `at F1 .. F2` needs F1 < F2, both positive. Write the lower running speed first.";
 
     // 5xx: requirements.
     RequirementFailed = "SP501", Error, "requirement not met",

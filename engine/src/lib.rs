@@ -10,6 +10,7 @@ pub mod diagnostics;
 pub mod dim;
 pub mod formula;
 pub mod model;
+pub mod suggest;
 pub mod units;
 
 pub use check::{Checked, check};
