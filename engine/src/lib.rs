@@ -6,10 +6,12 @@
 //! beyond the text it is given, or depend on tokio or the LSP.
 
 pub mod check;
+pub mod corners;
 pub mod diagnostics;
 pub mod dim;
 pub mod formula;
 pub mod model;
+pub mod requirements;
 pub mod suggest;
 pub mod units;
 
