@@ -336,9 +336,13 @@ static COMMON_PREFIXED: &[&str] = &[
 /// Common wrong spellings, matched case-insensitively against an unknown atom, with what to
 /// write instead. Never consulted for a valid atom (`nm` is the nanometre).
 static ALIASES: &[(&str, &str)] = &[
+    // `G` and `gs` for gravity; `g` itself is the gram.
+    ("g", "gn"),
+    ("gs", "gn"),
     ("nm", "N*m"),
     ("knm", "kN*m"),
     ("nmm", "N*mm"),
+    ("nms", "N*m*s"),
     ("mps", "m/s"),
     ("rps", "rev/s"),
     ("hr", "h"),
@@ -461,7 +465,19 @@ fn suggest(atom: &str) -> Option<String> {
     if let Some((_, s)) = ALIASES.iter().find(|(a, _)| *a == lower) {
         return Some((*s).to_string());
     }
-    // 2. A unit's name, singular or plural (`Newton`, `kilonewtons`, `inches`).
+    // 2. A symbol with a plural `s` (`kgs`, `revs`); after a force, torque or power the `s`
+    //    is more likely the second (`Ns` → `N*s`, `kNs` → `kN*s`, `Ws` → `W*s`).
+    if let Some(stem) = atom.strip_suffix('s') {
+        if let Some((u, _)) = resolve(stem) {
+            let per_second = [Dim::FORCE, Dim::TORQUE, POWER].contains(&u.dim);
+            return Some(if per_second {
+                format!("{stem}*s")
+            } else {
+                stem.to_string()
+            });
+        }
+    }
+    // 3. A unit's name, singular or plural (`Newton`, `kilonewtons`, `inches`).
     let name = normalize_name(atom);
     let singulars = [
         Some(name.as_str()),
@@ -483,7 +499,7 @@ fn suggest(atom: &str) -> Option<String> {
             }
         }
     }
-    // 3. The same letters in another case (`kn` → `kN`, `hz` → `Hz`); prefer the spelling
+    // 4. The same letters in another case (`kn` → `kN`, `hz` → `Hz`); prefer the spelling
     //    closest in case (`Mhz` → `MHz`).
     let ci = common_atoms()
         .filter(|c| c.to_lowercase() == lower)
@@ -491,7 +507,16 @@ fn suggest(atom: &str) -> Option<String> {
     if let Some(c) = ci {
         return Some(c.to_string());
     }
-    // 4. A small edit: at most 1 for atoms of up to 3 letters, else 2, and never as many as
+    // A prefix on a unit that takes none (`kft`, `krpm`): dropping the prefix would change
+    // the value a thousandfold, so suggest nothing.
+    let prefixed_fixed = PREFIXES.iter().any(|p| {
+        atom.strip_prefix(p.symbol)
+            .is_some_and(|rest| UNITS.iter().any(|u| !u.prefixable && u.symbol == rest))
+    });
+    if prefixed_fixed {
+        return None;
+    }
+    // 5. A small edit: at most 1 for atoms of up to 3 letters, else 2, and never as many as
     //    the atom has letters (so `q` suggests nothing rather than any one-letter unit).
     let n = atom.chars().count();
     let limit: usize = if n <= 3 { 1 } else { 2 };
