@@ -83,7 +83,14 @@ impl Compiler<'_> {
                             dim = atom.dim;
                         }
                         Err((span, err)) => {
-                            self.unit_error(span, err);
+                            self.unit_error(
+                                span,
+                                err,
+                                unit.terms
+                                    .iter()
+                                    .find(|t| t.atom_span == span)
+                                    .map(|t| t.atom.as_str()),
+                            );
                             return None;
                         }
                     }
@@ -150,14 +157,27 @@ impl Compiler<'_> {
         }
     }
 
-    fn unit_error(&mut self, span: Span, err: UnitError) {
+    fn unit_error(&mut self, span: Span, err: UnitError, text: Option<&str>) {
         let d = match err {
             UnitError::AmbiguousPound => Diagnostic::new(
                 Code::AmbiguousPound,
                 span,
-                "`lb` is ambiguous: it could be the pound-mass or the pound-force",
+                format!(
+                    "`{}` is ambiguous: it could be the pound-mass or the pound-force",
+                    text.unwrap_or("lb")
+                ),
             )
             .with_help("write `lbm` for the pound-mass or `lbf` for the pound-force"),
+            UnitError::ExponentTooLarge => Diagnostic::new(
+                Code::BadPower,
+                span,
+                "this unit's exponent is larger than any physical quantity has",
+            ),
+            UnitError::FactorOutOfRange => Diagnostic::new(
+                Code::NotFinite,
+                span,
+                "this unit's conversion factor overflows a floating-point number",
+            ),
             UnitError::Unknown { atom, suggestion } => {
                 let d = Diagnostic::new(Code::UnknownUnit, span, format!("unknown unit `{atom}`"));
                 match suggestion {
