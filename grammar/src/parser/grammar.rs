@@ -497,7 +497,7 @@ fn statement<'t, 's: 't>(
 
 /// `mode N` with N a bare positive integer.
 fn mode_ref<'t, 's: 't>() -> P<'t, 's, ModeRef> {
-    just(Token::Mode)
+    kw(Token::Mode, "`mode` and a mode number after `of`")
         .ignore_then(select! { Token::Number(s) => s }.labelled("a mode number after `mode`"))
         .validate(|text: &str, e, emitter| {
             let digits_only = text.chars().all(|c| c.is_ascii_digit() || c == '_');

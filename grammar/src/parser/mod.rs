@@ -56,6 +56,19 @@ pub struct ParseError {
     pub help: Option<String>,
 }
 
+impl std::fmt::Display for ParseError {
+    /// The message, then the help on its own line when there is one.
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.message)?;
+        if let Some(help) = &self.help {
+            write!(f, "\nhelp: {help}")?;
+        }
+        Ok(())
+    }
+}
+
+impl std::error::Error for ParseError {}
+
 #[derive(Clone, Debug, Default)]
 pub struct Parse {
     pub file: File,
@@ -287,7 +300,11 @@ impl<'t, 's: 't> Splitter<'_, 't, 's> {
         let header = &self.sig[start..header_end];
         let header_span = self.span_of(start).cover(self.span_of(header_end - 1));
         let header_has_lex_error = self.lex_error_within(header_span);
-        let (name, title) = match self.run(&self.grammar.header, header, start) {
+        let errors_before = self.errors.len();
+        let parsed = self.run(&self.grammar.header, header, start);
+        // One error per header: a broken header does not also get "expected `{`".
+        let header_failed = header_has_lex_error || self.errors.len() > errors_before;
+        let (name, title) = match parsed {
             Some(((name, title), _)) => (name, title),
             None => {
                 // Keep the body: name the system after the first name in the header, if any.
@@ -324,7 +341,7 @@ impl<'t, 's: 't> Splitter<'_, 't, 's> {
                 Some(open)
             }
             found => {
-                if !header_has_lex_error {
+                if !header_failed {
                     let found_text =
                         found.map_or("the end of the file".to_string(), |t| t.describe());
                     let at = self
@@ -363,7 +380,7 @@ impl<'t, 's: 't> Splitter<'_, 't, 's> {
                     };
                     self.error(
                         ParseErrorKind::UnclosedBlock,
-                        header_span,
+                        open.map_or(header_span, |o| header_span.cover(o)),
                         message,
                         Some("add `}` after the system's last statement".to_string()),
                     );
@@ -501,11 +518,25 @@ impl<'t, 's: 't> Splitter<'_, 't, 's> {
             return kept;
         }
         let (message, trailing) = describe_error(&first_err);
-        let help = if trailing {
-            "a statement ends here; the next one starts with a keyword such as `mass`, \
-             `spring` or `require` (or is an operator missing?)"
+        let header = matches!(first, Token::System);
+        let (message, help) = if header && trailing {
+            (
+                format!(
+                    "expected `{{` after the system header, found {}",
+                    first_err
+                        .found()
+                        .map_or("the end of the header".to_string(), Token::describe)
+                ),
+                "a system header is `system NAME [\"Title\"]`, then `{`",
+            )
+        } else if trailing {
+            (
+                message,
+                "a statement ends here; the next one starts with a keyword such as `mass`, \
+             `spring` or `require` (or is an operator missing?)",
+            )
         } else {
-            form_of(first)
+            (message, form_of(first))
         };
         self.error(
             ParseErrorKind::Syntax,
