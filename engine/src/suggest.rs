@@ -15,7 +15,7 @@ pub fn did_you_mean<'a>(
         let dist = if cand.eq_ignore_ascii_case(name) {
             0
         } else {
-            strsim::levenshtein(name, cand)
+            strsim::osa_distance(name, cand)
         };
         if dist <= limit && best.is_none_or(|(d, c)| dist < d || (dist == d && cand < c)) {
             best = Some((dist, cand));

@@ -503,6 +503,10 @@ impl<'t> Checker<'t, '_> {
         };
 
         let mut gravity_span: Option<Span> = None;
+        // Every element whose ends resolved, even if its value did not: the topology checks
+        // need the whole graph, and are skipped when an end is broken (they would only cascade).
+        let mut edges: Vec<(ElementKind, End, End)> = Vec::new();
+        let mut topology_complete = true;
         let mut initial_seen: HashMap<usize, Span> = HashMap::new();
         for (st, &di) in sys.statements.iter().zip(&def_of) {
             let scope = Scope {
@@ -521,6 +525,7 @@ impl<'t> Checker<'t, '_> {
                     let eb = self.end(b, &sm, &dof_index);
                     let (Some(ea), Some(eb)) = (ea, eb) else {
                         failed = true;
+                        topology_complete = false;
                         continue;
                     };
                     if ea == End::Ground && eb == End::Ground {
@@ -533,6 +538,7 @@ impl<'t> Checker<'t, '_> {
                             ),
                         ));
                         failed = true;
+                        topology_complete = false;
                         continue;
                     }
                     if ea == eb {
@@ -546,6 +552,7 @@ impl<'t> Checker<'t, '_> {
                             ),
                         ));
                         failed = true;
+                        topology_complete = false;
                         continue;
                     }
                     let kinds: Vec<DofKind> = [ea, eb]
@@ -572,8 +579,10 @@ impl<'t> Checker<'t, '_> {
                             .with_help("connect masses to masses and inertias to inertias"),
                         );
                         failed = true;
+                        topology_complete = false;
                         continue;
                     }
+                    edges.push((*kind, ea, eb));
                     let rotational = kinds[0] == DofKind::Rotational;
                     let (dim, word) = match (kind, rotational) {
                         (ElementKind::Spring, false) => (Dim::STIFFNESS, "a translational spring"),
@@ -732,7 +741,9 @@ impl<'t> Checker<'t, '_> {
             }
         }
 
-        self.topology(&sm);
+        if topology_complete {
+            self.topology(&sm, &edges);
+        }
         let roots: Vec<_> = sm
             .dofs
             .iter()
@@ -1236,7 +1247,7 @@ impl<'t> Checker<'t, '_> {
     }
 
     /// Model warnings from the connectivity of springs and dampers.
-    fn topology(&mut self, sm: &SystemModel) {
+    fn topology(&mut self, sm: &SystemModel, edges: &[(ElementKind, End, End)]) {
         if sm.dofs.is_empty() {
             self.error(Diagnostic::new(
                 Code::NoMasses,
@@ -1264,17 +1275,17 @@ impl<'t> Checker<'t, '_> {
             End::Dof(i) => i,
         };
         let mut touches_ground = false;
-        for el in &sm.elements {
-            touches_ground |= el.a == End::Ground || el.b == End::Ground;
-            if el.kind != ElementKind::Spring {
+        for &(kind, a, b) in edges {
+            touches_ground |= a == End::Ground || b == End::Ground;
+            if kind != ElementKind::Spring {
                 continue;
             }
-            for e in [el.a, el.b] {
+            for e in [a, b] {
                 if let End::Dof(i) = e {
                     has_spring[i] = true;
                 }
             }
-            let (ra, rb) = (find(&mut parent, idx(el.a)), find(&mut parent, idx(el.b)));
+            let (ra, rb) = (find(&mut parent, idx(a)), find(&mut parent, idx(b)));
             parent[ra] = rb;
         }
         for (i, dof) in sm.dofs.iter().enumerate() {
