@@ -98,8 +98,9 @@ fn models_below(root: &Path) -> Result<Vec<PathBuf>, PathError> {
 #[derive(Debug)]
 pub enum ReadError {
     Io(io::Error),
+    /// Over the limit; the size when the file system told it.
     TooLarge {
-        bytes: u64,
+        bytes: Option<u64>,
     },
     NotUtf8 {
         offset: usize,
@@ -112,11 +113,17 @@ impl fmt::Display for ReadError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
             ReadError::Io(err) => write!(f, "cannot read it: {err}"),
-            ReadError::TooLarge { bytes } => write!(
-                f,
-                "refused [SP106]: the file is {bytes} bytes, over the limit of {MAX_FILE_BYTES} \
-                 bytes (8 MiB); lumped models are far smaller"
-            ),
+            ReadError::TooLarge { bytes } => {
+                write!(f, "refused [SP106]: the file is ")?;
+                if let Some(bytes) = bytes {
+                    write!(f, "{bytes} bytes, ")?;
+                }
+                write!(
+                    f,
+                    "over the limit of 8 MiB ({MAX_FILE_BYTES} bytes); lumped models are far \
+                     smaller"
+                )
+            }
             ReadError::NotUtf8 {
                 offset,
                 line,
@@ -137,7 +144,9 @@ pub fn read_model(path: &Path) -> Result<String, ReadError> {
     if let Ok(meta) = file.metadata()
         && meta.len() > MAX_FILE_BYTES
     {
-        return Err(ReadError::TooLarge { bytes: meta.len() });
+        return Err(ReadError::TooLarge {
+            bytes: Some(meta.len()),
+        });
     }
     // The size on disk may change or lie (pipes, special files): bound the read itself too.
     let mut bytes = Vec::new();
@@ -145,9 +154,7 @@ pub fn read_model(path: &Path) -> Result<String, ReadError> {
         .read_to_end(&mut bytes)
         .map_err(ReadError::Io)?;
     if bytes.len() as u64 > MAX_FILE_BYTES {
-        return Err(ReadError::TooLarge {
-            bytes: bytes.len() as u64,
-        });
+        return Err(ReadError::TooLarge { bytes: None });
     }
     String::from_utf8(bytes).map_err(|err| {
         let valid = &err.as_bytes()[..err.utf8_error().valid_up_to()];
