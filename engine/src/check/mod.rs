@@ -60,6 +60,7 @@ pub fn check(text: &str) -> Checked {
     let mut diagnostics: Vec<Diagnostic> = parse.errors.iter().map(parse_diagnostic).collect();
     let model = Checker {
         text,
+        parse_errors: parse.errors.iter().map(|e| e.span).collect(),
         formulas: Formulas::default(),
         params: Vec::new(),
         diags: &mut diagnostics,
@@ -202,6 +203,9 @@ fn list_names(names: &[&str]) -> String {
 
 struct Checker<'t, 'd> {
     text: &'t str,
+    /// Where the parser dropped text: a system with a dropped statement gets no model
+    /// warnings, which would only describe the hole.
+    parse_errors: Vec<Span>,
     formulas: Formulas,
     params: Vec<Param>,
     diags: &'d mut Vec<Diagnostic>,
@@ -506,7 +510,10 @@ impl<'t> Checker<'t, '_> {
         // Every element whose ends resolved, even if its value did not: the topology checks
         // need the whole graph, and are skipped when an end is broken (they would only cascade).
         let mut edges: Vec<(ElementKind, End, End)> = Vec::new();
-        let mut topology_complete = true;
+        let mut topology_complete = !self
+            .parse_errors
+            .iter()
+            .any(|e| sys.span.start <= e.start && e.start < sys.span.end.max(sys.span.start + 1));
         let mut initial_seen: HashMap<usize, Span> = HashMap::new();
         for (st, &di) in sys.statements.iter().zip(&def_of) {
             let scope = Scope {
