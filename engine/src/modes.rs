@@ -5,7 +5,7 @@
 //!
 //! 1. **Undamped modes**: K φ = ω² M φ through [`eigen::generalized_symmetric`]; ω² ascending,
 //!    shapes mass-normalised (φᵀ M φ = 1), each signed so that its largest-magnitude entry is
-//!    positive. A mode is a **rigid-body** mode when |ω²| ≤ `rigid_tolerance` (1e-10) × the
+//!    positive (the first one, in dof order, of entries equal in magnitude to rounding). A mode is a **rigid-body** mode when |ω²| ≤ `rigid_tolerance` (1e-10) × the
 //!    largest |ω²| (so every mode is rigid when K = 0).
 //! 2. **Damped roots** are the eigenvalues of the state matrix [[0, I], [−M⁻¹K, −M⁻¹C]]. We use
 //!    it in undamped modal coordinates x = Φ q, which is a similarity transform
@@ -216,8 +216,14 @@ pub fn analyze(mats: &Matrices, config: &ModalConfig) -> Result<ModalResult, Mod
     let mut shapes = und.shapes;
     for j in 0..n {
         let mut col = shapes.column_mut(j);
-        let big = (0..n).fold(0, |b, i| if col[i].abs() > col[b].abs() { i } else { b });
-        if col[big] < 0.0 {
+        // The first entry within rounding of the largest magnitude decides the sign, so that
+        // a shape with two equal-magnitude extremes (an antisymmetric mode) is signed the same
+        // way on every machine.
+        let peak = col.iter().fold(0.0_f64, |a, x| a.max(x.abs()));
+        let lead = (0..n)
+            .find(|&i| col[i].abs() >= peak * (1.0 - 1e-9))
+            .unwrap_or(0);
+        if col[lead] < 0.0 {
             col.neg_mut();
         }
     }
@@ -244,13 +250,15 @@ pub fn analyze(mats: &Matrices, config: &ModalConfig) -> Result<ModalResult, Mod
             DampedMethod::StateSpace => vec![(0..n).collect()],
             DampedMethod::Auto => coupled_groups(&d, config.coupling_tolerance),
         };
-        damping = if groups.iter().all(|g| g.len() == 1) {
+        damping = if config.method == DampedMethod::Auto && groups.iter().all(|g| g.len() == 1) {
             DampingKind::Classical
         } else {
             DampingKind::NonClassical
         };
         for group in groups {
-            if let [j] = group[..] {
+            if let [j] = group[..]
+                && config.method == DampedMethod::Auto
+            {
                 pairs[j] = Some((quadratic_roots(d[(j, j)], omega2[j]), 1.0));
             } else {
                 let assigned = solve_group(&group, &omega2, &rigid, omega_max, &d, config)?;
