@@ -5,12 +5,15 @@
 //! ([`model`]) and diagnostics as plain data ([`diagnostics`]). It must not print, read files
 //! beyond the text it is given, or depend on tokio or the LSP.
 
+pub mod assemble;
 pub mod check;
 pub mod corners;
 pub mod diagnostics;
 pub mod dim;
+pub mod eigen;
 pub mod formula;
 pub mod model;
+pub mod modes;
 pub mod requirements;
 pub mod suggest;
 pub mod units;
