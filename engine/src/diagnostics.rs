@@ -243,6 +243,10 @@ catalogue! {
          names it would bring in are unknown.";
     EmptyBand = "SP413", Error, "drive band is empty or reversed",
         "A band `at F1 .. F2` needs F1 < F2, both positive. Write the lower running speed first.";
+    DamperNotFelt = "SP414", Warning, "damper that no mode feels",
+        "In every undamped mode both ends of this damper move together (or stay still), so it \
+         adds no damping to any mode. It may still act on a forced response; check that it \
+         connects what was meant.";
 
     // 5xx: requirements.
     RequirementFailed = "SP501", Error, "requirement not met",
@@ -263,6 +267,23 @@ catalogue! {
     NotYetEvaluated = "SP505", Warning, "requirement not evaluated yet",
         "This kind of requirement is read and checked but this version does not evaluate it \
          yet. It neither passes nor fails; it is reported so that nothing passes silently.";
+    RigidExcepted = "SP506", Warning, "rigid-body mode excepted from a requirement",
+        "A requirement without `of mode N` must hold for every mode, but a rigid-body mode \
+         (a mass or group with no spring path to ground) has no natural frequency or damping \
+         ratio to compare. It is left out, and this warning says so.";
+
+    // 6xx: analysis.
+    TooManyDofs = "SP601", Error, "system too large to analyze",
+        "The system has more degrees of freedom than the analysis limit (5,000 by default). \
+         The model is still checked; its modes and requirements are not computed.";
+    AnalysisFailed = "SP602", Error, "modal analysis failed",
+        "The eigenvalue problem of the system could not be solved: the mass matrix is not \
+         positive definite (a zero or negative mass or inertia) or an eigensolver did not \
+         converge. The requirements of the system are not evaluated.";
+    TooManyCorners = "SP603", Error, "tolerance box too large to search",
+        "The system depends on more than 16 toleranced values, so its tolerance box has more \
+         than 2^16 corners. Rather than guess a worst case, the analyzer evaluates none and \
+         says so. Fix some values, or merge tolerances that move together into one `let`.";
 }
 
 #[cfg(test)]

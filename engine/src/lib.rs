@@ -5,6 +5,7 @@
 //! ([`model`]) and diagnostics as plain data ([`diagnostics`]). It must not print, read files
 //! beyond the text it is given, or depend on tokio or the LSP.
 
+pub mod analysis;
 pub mod assemble;
 pub mod check;
 pub mod corners;

@@ -11,61 +11,33 @@ use sprung_syntax::ast::{CmpOp, Regime, Subject};
 use crate::corners::Corner;
 use crate::formula::{Evaluator, FormulaId, Formulas};
 use crate::model::{Limit, Quantity, Requirement};
+use crate::modes::ModeRegime;
 
-/// How a mode behaves, as the JSON contract spells it.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize)]
-#[serde(rename_all = "snake_case")]
-pub enum ModeRegime {
-    Undamped,
-    Underdamped,
-    CriticallyDamped,
-    Overdamped,
-    RigidBody,
-    Unstable,
+/// A regime as a person writes it (`critically damped`).
+pub fn regime_words(r: ModeRegime) -> &'static str {
+    match r {
+        ModeRegime::CriticallyDamped => "critically damped",
+        ModeRegime::RigidBody => "rigid body",
+        other => other.as_str(),
+    }
 }
 
-impl ModeRegime {
-    /// The contract spelling (`critically_damped`).
-    pub fn as_str(self) -> &'static str {
-        match self {
-            ModeRegime::Undamped => "undamped",
-            ModeRegime::Underdamped => "underdamped",
-            ModeRegime::CriticallyDamped => "critically_damped",
-            ModeRegime::Overdamped => "overdamped",
-            ModeRegime::RigidBody => "rigid_body",
-            ModeRegime::Unstable => "unstable",
-        }
+/// Whether `is [not] REGIME` holds for a mode. `is not underdamped` fails for undamped modes
+/// too: a mode with ζ = 0 still oscillates (language.md §5).
+pub fn regime_matches(found: ModeRegime, regime: Regime, not: bool) -> bool {
+    let is = match regime {
+        Regime::Undamped => found == ModeRegime::Undamped,
+        Regime::Underdamped => found == ModeRegime::Underdamped,
+        Regime::CriticallyDamped => found == ModeRegime::CriticallyDamped,
+        Regime::Overdamped => found == ModeRegime::Overdamped,
+    };
+    if !not {
+        return is;
     }
-
-    /// As a person writes it (`critically damped`).
-    pub fn words(self) -> &'static str {
-        match self {
-            ModeRegime::CriticallyDamped => "critically damped",
-            ModeRegime::RigidBody => "rigid body",
-            other => other.as_str(),
-        }
-    }
-
-    /// Whether `is REGIME` holds. `is not underdamped` fails for undamped modes too: a mode
-    /// with ζ = 0 still oscillates (language.md §5).
-    pub fn matches(self, regime: Regime, not: bool) -> bool {
-        let is = match regime {
-            Regime::Undamped => self == ModeRegime::Undamped,
-            Regime::Underdamped => self == ModeRegime::Underdamped,
-            Regime::CriticallyDamped => self == ModeRegime::CriticallyDamped,
-            Regime::Overdamped => self == ModeRegime::Overdamped,
-        };
-        if not {
-            let oscillates = matches!(self, ModeRegime::Underdamped | ModeRegime::Undamped);
-            let excluded = if regime == Regime::Underdamped {
-                oscillates
-            } else {
-                is
-            };
-            !excluded
-        } else {
-            is
-        }
+    if regime == Regime::Underdamped {
+        !matches!(found, ModeRegime::Underdamped | ModeRegime::Undamped)
+    } else {
+        !is
     }
 }
 
@@ -215,7 +187,7 @@ pub fn evaluate_modal(
         for (index, mode) in chosen {
             let point = match (&req.subject, &req.limit) {
                 (_, Limit::Is { not, regime }) => {
-                    let ok = mode.regime.matches(*regime, *not);
+                    let ok = regime_matches(mode.regime, *regime, *not);
                     Point {
                         value: 0.0,
                         limit: 0.0,
@@ -332,7 +304,7 @@ fn describe(req: &Requirement, p: &Point, passed: bool, corner: Option<&Corner>)
         |c| format!("worst at {}", c.describe()),
     );
     if let Limit::Is { not, regime } = req.limit {
-        let found = p.regime.map_or("unknown", ModeRegime::words);
+        let found = p.regime.map_or("unknown", regime_words);
         let want = format!("{}{}", if not { "not " } else { "" }, regime.words());
         let verdict = if passed { "as required" } else { "required" };
         return format!("regime{mode}: {found}, {want} {verdict}; {at}");

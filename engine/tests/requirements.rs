@@ -1,0 +1,175 @@
+//! Requirement verdicts at the worst corner of the tolerance box. Closed forms for one mass
+//! (common practice): ω0 = √(k/m), ζ = c / (2√(km)).
+
+use sprung_engine::analysis::{Config, analyze};
+use sprung_engine::check;
+use sprung_engine::requirements::Status;
+
+fn run(text: &str) -> (sprung_engine::Checked, sprung_engine::analysis::Analysis) {
+    let c = check(text);
+    assert!(!c.has_errors(), "{:#?}", c.diagnostics);
+    let a = analyze(&c, &Config::default());
+    (c, a)
+}
+
+fn rel(a: f64, b: f64) -> f64 {
+    ((a - b) / b).abs()
+}
+
+/// ζ = 0.05 at nominal: c = 0.05 · 2 · √(40 kN/m · 10 kg).
+const ONE_MASS: &str = "system mount {
+  mass m = 10 kg ± 10%
+  spring k between m and ground = 40 kN/m ± 5%
+  damper c between m and ground = 0.05 * 2 * sqrt(40 kN/m * 10 kg)
+  require damping >= 0.049
+  require frequency of mode 1 in 9 Hz .. 11 Hz
+}";
+
+#[test]
+fn passes_at_nominal_but_fails_at_the_worst_corner_which_is_named() {
+    let (_, a) = run(ONE_MASS);
+    let v = &a.systems[0].verdicts[0];
+    assert_eq!(v.status, Status::Failed);
+    // Heaviest mass and stiffest spring give the least damping ratio: 0.05/√(1.1·1.05).
+    let expected = 0.05 / (1.1f64 * 1.05).sqrt();
+    assert!(
+        rel(v.value.expect("value"), expected) < 1e-12,
+        "{:?}",
+        v.value
+    );
+    assert_eq!(v.limit, Some(0.049));
+    let corner = v.worst_corner.as_ref().expect("a corner, not nominal");
+    assert_eq!(corner.describe(), "m +10%, k +5%");
+    let failed: Vec<_> = a.diagnostics.iter().filter(|d| d.code == "SP501").collect();
+    assert_eq!(failed.len(), 1);
+    assert!(
+        failed[0]
+            .message
+            .starts_with("damping of mode 1: 0.04652 < 0.049 required (margin -0.002"),
+        "{}",
+        failed[0].message
+    );
+    assert!(
+        failed[0].message.ends_with("worst at m +10%, k +5%"),
+        "{}",
+        failed[0].message
+    );
+}
+
+#[test]
+fn frequency_range_is_searched_over_the_corners() {
+    let (_, a) = run(ONE_MASS);
+    let v = &a.systems[0].verdicts[1];
+    assert_eq!(v.status, Status::Passed, "{}", v.message);
+    // The value nearest a bound: lightest mass, stiffest spring, f = √(1.05·40e3/(0.9·10))/2π.
+    let f = (1.05f64 * 40e3 / 9.0).sqrt() / std::f64::consts::TAU;
+    assert!(rel(v.value.expect("value") / std::f64::consts::TAU, f) < 1e-12);
+    assert!(rel(v.limit.expect("limit") / std::f64::consts::TAU, 11.0) < 1e-12);
+}
+
+#[test]
+fn regimes_including_exact_critical_damping() {
+    let text = "system door {
+  mass leaf = 25 kg
+  spring closer between leaf and ground = 900 N/m
+  damper check between leaf and ground = 2 * sqrt(closer * leaf)
+  require regime is critically damped
+  require regime is not underdamped
+  require damping in 0.999999 .. 1.000001
+}";
+    let (_, a) = run(text);
+    for v in &a.systems[0].verdicts {
+        assert_eq!(v.status, Status::Passed, "{}", v.message);
+    }
+    let under = "system door {
+  mass leaf = 25 kg
+  spring closer between leaf and ground = 900 N/m
+  damper check between leaf and ground = 0.3 * 2 * sqrt(closer * leaf)
+  require regime is not underdamped
+}";
+    let (_, a) = run(under);
+    let v = &a.systems[0].verdicts[0];
+    assert_eq!(v.status, Status::Failed);
+    assert_eq!(
+        v.message,
+        "regime of mode 1: underdamped, not underdamped required; at nominal values"
+    );
+}
+
+#[test]
+fn is_not_underdamped_fails_for_undamped_modes_too() {
+    let text = "system bare {\n mass m = 1 kg\n spring k between m and ground = 1 kN/m\n require regime is not underdamped\n}";
+    let (_, a) = run(text);
+    assert_eq!(a.systems[0].verdicts[0].status, Status::Failed);
+}
+
+#[test]
+fn rigid_body_modes_are_excepted_with_a_warning() {
+    let text = "system float {
+  mass a = 1 kg
+  mass b = 1 kg
+  spring k between a and b = 1 kN/m
+  damper c between a and b = 20 N*s/m
+  require damping >= 0.1
+}";
+    let c = check(text);
+    let a = analyze(&c, &Config::default());
+    let v = &a.systems[0].verdicts[0];
+    // The elastic mode: reduced mass 0.5 kg, ζ = c / (2 √(k μ)) = 20 / (2 √500).
+    assert!(
+        rel(v.value.expect("value"), 20.0 / (2.0 * 500f64.sqrt())) < 1e-9,
+        "{v:?}"
+    );
+    assert_eq!(v.mode, Some(2));
+    assert!(
+        a.diagnostics.iter().any(|d| d.code == "SP506"),
+        "{:#?}",
+        a.diagnostics
+    );
+}
+
+#[test]
+fn response_subjects_are_reported_not_silently_passed() {
+    let text = "system s {\n mass m = 1 kg\n spring k between m and ground = 1 kN/m\n force f on m = 1 N at 3 Hz\n require separation from f >= 20%\n}";
+    let (_, a) = run(text);
+    assert!(matches!(
+        a.systems[0].verdicts[0].status,
+        Status::NotEvaluated(_)
+    ));
+    assert_eq!(
+        a.diagnostics.iter().map(|d| d.code).collect::<Vec<_>>(),
+        ["SP505"]
+    );
+    // A warning, not an error: the run still passes on what it did evaluate.
+    assert!(a.passed(&check(text)));
+}
+
+#[test]
+fn more_than_two_to_the_sixteen_corners_is_a_diagnostic() {
+    let mut text = String::from("system big {\n");
+    for i in 0..17 {
+        text.push_str(&format!(
+            " mass m{i} = 1 kg ± 1%\n spring k{i} between m{i} and ground = 1 kN/m\n"
+        ));
+    }
+    text.push_str(" require frequency > 1 Hz\n}");
+    let (_, a) = run(&text);
+    assert!(
+        a.diagnostics.iter().any(|d| d.code == "SP603"),
+        "{:#?}",
+        a.diagnostics
+    );
+    assert!(matches!(
+        a.systems[0].verdicts[0].status,
+        Status::NotEvaluated(_)
+    ));
+}
+
+#[test]
+fn a_damper_that_a_mode_stretches_raises_no_warning() {
+    // Two equal masses on equal springs joined by a spring and a damper: the out-of-phase
+    // mode stretches the damper, so it is felt.
+    let felt = "system pair {\n mass a = 1 kg\n mass b = 2 kg\n spring ka between a and ground = 1 kN/m\n spring kb between b and ground = 1 kN/m\n spring ab between a and b = 1 kN/m\n damper c between a and b = 5 N*s/m\n}";
+    let (_, a) = run(felt);
+    assert!(a.diagnostics.is_empty(), "{:#?}", a.diagnostics);
+}
