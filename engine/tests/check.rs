@@ -84,10 +84,7 @@ fn design_example_checks_to_si_values() {
     let high = c.model.formulas.eval(loss.value.formula, &[0.15]);
     assert!(rel(high, loss.value.nominal * 1.15f64.sqrt()) < 1e-12);
     assert_eq!(sys.requirements.len(), 4);
-    assert_eq!(
-        sys.requirements[0].text,
-        "require separation from unbalance >= 25%"
-    );
+    assert_eq!(sys.requirements[0].text, "separation from unbalance >= 25%");
 }
 
 #[test]

@@ -4,9 +4,11 @@ use std::io::{self, BufWriter, Write};
 
 use crate::args::{CheckArgs, Format};
 use crate::files;
+use crate::render::CAUTION;
 use crate::render::Tally;
 use crate::render::human::{HumanRenderer, Style};
 use crate::render::json::{CheckJson, FileJson};
+use sprung_engine::analysis::{Config, analyze};
 
 use super::{Status, report_error};
 
@@ -36,16 +38,17 @@ pub fn run(args: &CheckArgs) -> io::Result<Status> {
             }
         };
         let checked = sprung_engine::check(&text);
-        tally.add(&checked.diagnostics);
+        let analysis = analyze(&checked, &Config::default());
+        let diagnostics = analysis.all_diagnostics(&checked);
+        tally.add(&diagnostics);
         match &human {
-            Some(renderer) => {
-                renderer.render_file(&mut out, &shown, &text, &checked.diagnostics)?
-            }
+            Some(renderer) => renderer.render_file(&mut out, &shown, &text, &diagnostics)?,
             None => json_files.push(FileJson::new(
                 &shown,
                 &text,
-                &checked.diagnostics,
+                &diagnostics,
                 &checked.model.systems,
+                &analysis.systems,
             )),
         }
     }
@@ -60,10 +63,12 @@ pub fn run(args: &CheckArgs) -> io::Result<Status> {
 
     if human.is_some() {
         writeln!(out, "{}", tally.summary())?;
+        writeln!(out, "{CAUTION}")?;
     } else {
         let report = CheckJson {
             passed: status == Status::Passed,
             files: json_files,
+            caution: CAUTION,
         };
         serde_json::to_writer_pretty(&mut out, &report).map_err(io::Error::other)?;
         writeln!(out)?;

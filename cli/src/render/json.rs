@@ -7,8 +7,11 @@ use std::collections::BTreeMap;
 
 use serde::Serialize;
 use sprung_engine::Diagnostic;
+use sprung_engine::analysis::SystemAnalysis;
 use sprung_engine::model::SystemModel;
+use sprung_engine::requirements::Status;
 use sprung_syntax::LineIndex;
+use sprung_syntax::ast::Subject;
 
 use super::{Position, clamp};
 
@@ -17,6 +20,8 @@ pub struct CheckJson {
     /// No error in any file (failed requirements are errors) and every file was read.
     pub passed: bool,
     pub files: Vec<FileJson>,
+    /// The caution every report carries (an added key; the contract allows more keys).
+    pub caution: &'static str,
 }
 
 #[derive(Debug, Serialize)]
@@ -56,6 +61,11 @@ pub struct RequirementJson {
     pub value: Option<f64>,
     pub limit: Option<f64>,
     pub worst_corner: Option<BTreeMap<String, String>>,
+    /// `passed`, `failed` or `not_evaluated` (an added key: `passed` alone cannot tell a
+    /// requirement that failed from one this version does not evaluate yet).
+    pub status: &'static str,
+    /// The verdict in words, as the diagnostics show it.
+    pub message: String,
 }
 
 impl FileJson {
@@ -64,6 +74,7 @@ impl FileJson {
         text: &str,
         diagnostics: &[Diagnostic],
         systems: &[SystemModel],
+        analyses: &[SystemAnalysis],
     ) -> Self {
         let index = LineIndex::new(text);
         FileJson {
@@ -74,9 +85,10 @@ impl FileJson {
                 .collect(),
             systems: systems
                 .iter()
-                .map(|s| SystemJson {
+                .zip(analyses)
+                .map(|(s, a)| SystemJson {
                     name: s.name.clone(),
-                    requirements: requirements_of(s),
+                    requirements: requirements_of(text, &index, s, a),
                 })
                 .collect(),
         }
@@ -101,12 +113,47 @@ impl DiagnosticJson {
     }
 }
 
-/// The seam for requirement verdicts. The engine checks requirements (names, units, forms)
-/// but does not evaluate them yet, so there is nothing true to report: the list stays empty
-/// rather than holding made-up values. When the engine's analysis reports a verdict per
-/// requirement, map each one to a [`RequirementJson`] here.
-fn requirements_of(_system: &SystemModel) -> Vec<RequirementJson> {
-    Vec::new()
+/// One entry per requirement. Values and limits are SI, but frequencies are in hertz
+/// (language.md §7); the engine holds them in rad/s.
+fn requirements_of(
+    text: &str,
+    index: &LineIndex,
+    system: &SystemModel,
+    analysis: &SystemAnalysis,
+) -> Vec<RequirementJson> {
+    system
+        .requirements
+        .iter()
+        .zip(&analysis.verdicts)
+        .map(|(req, v)| {
+            let hertz = matches!(req.subject, Subject::Frequency { .. });
+            let show = |x: f64| if hertz { x / std::f64::consts::TAU } else { x };
+            RequirementJson {
+                line: Position::of(text, index, req.span.start).line,
+                text: req.text.clone(),
+                passed: v.passed(),
+                value: v.value.map(show),
+                limit: v.limit.map(show),
+                worst_corner: v.worst_corner.as_ref().map(|c| {
+                    c.ends
+                        .iter()
+                        .map(|e| {
+                            (
+                                e.name.clone(),
+                                if e.high { "high" } else { "low" }.to_owned(),
+                            )
+                        })
+                        .collect()
+                }),
+                status: match v.status {
+                    Status::Passed => "passed",
+                    Status::Failed => "failed",
+                    Status::NotEvaluated(_) => "not_evaluated",
+                },
+                message: v.message.clone(),
+            }
+        })
+        .collect()
 }
 
 #[cfg(test)]
@@ -125,7 +172,7 @@ mod tests {
             "`lb` is ambiguous",
         )
         .with_help("write `lbm` or `lbf`");
-        let file = FileJson::new("s.sprung", text, &[d], &[]);
+        let file = FileJson::new("s.sprung", text, &[d], &[], &[]);
         let value = serde_json::to_value(&file).unwrap_or_default();
         let d = &value["diagnostics"][0];
         assert_eq!(d["code"], "SP302");
@@ -148,6 +195,8 @@ mod tests {
             value: Some(0.061),
             limit: Some(0.02),
             worst_corner: None,
+            status: "passed",
+            message: String::new(),
         };
         let value = serde_json::to_value(&nominal).unwrap_or_default();
         let mut keys: Vec<&str> = value
@@ -157,7 +206,16 @@ mod tests {
         keys.sort_unstable();
         assert_eq!(
             keys,
-            ["limit", "line", "passed", "text", "value", "worst_corner"]
+            [
+                "limit",
+                "line",
+                "message",
+                "passed",
+                "status",
+                "text",
+                "value",
+                "worst_corner"
+            ]
         );
         assert!(value["worst_corner"].is_null());
     }

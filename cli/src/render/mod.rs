@@ -1,6 +1,9 @@
 //! Renderers: engine results to terminal text ([`human`]) or to the JSON contract ([`json`]).
 //! Byte spans become lines and columns only here.
 
+/// Printed under every report (README, "Caution").
+pub const CAUTION: &str = "Caution: results hold for linear lumped models only; verify them by test, and defer to local codes and licensed engineers.";
+
 pub mod human;
 pub mod json;
 

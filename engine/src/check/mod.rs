@@ -999,9 +999,9 @@ impl<'t> Checker<'t, '_> {
         dof_index: &HashMap<&str, usize>,
         scope: &dyn Names,
     ) -> Option<Requirement> {
-        let text = collapse(
-            &self.text[req.span.start.min(self.text.len())..req.span.end.min(self.text.len())],
-        );
+        let written =
+            &self.text[req.span.start.min(self.text.len())..req.span.end.min(self.text.len())];
+        let text = collapse(written.strip_prefix("require").unwrap_or(written));
         let mut mode = None;
         let mut drive = None;
         let mut dof = None;
