@@ -20,8 +20,34 @@ pub enum Command {
     /// Exit status: 0 all passed (warnings allowed), 1 a requirement failed or a model has
     /// errors, 2 usage or I/O error.
     Check(CheckArgs),
+    /// Print the natural frequencies, damping ratios, regimes and mode shapes of a model.
+    ///
+    /// Exit status: 0 when every system was analyzed, 1 when the model has errors, 2 usage or
+    /// I/O error.
+    Modes(ModesArgs),
     /// Print the long explanation of a diagnostic code (e.g. `sprung explain SP301`).
     Explain(ExplainArgs),
+}
+
+#[derive(Debug, clap::Args)]
+pub struct ModesArgs {
+    /// The model file.
+    #[arg(value_name = "FILE")]
+    pub file: PathBuf,
+    /// Show only this system.
+    #[arg(long, value_name = "NAME")]
+    pub system: Option<String>,
+    /// Output format: `table` (terminal), `json` (the stable contract of the README) or
+    /// `markdown` (for reports and pull requests).
+    #[arg(long, value_enum, default_value_t = ModesFormat::Table)]
+    pub format: ModesFormat,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum ModesFormat {
+    Table,
+    Json,
+    Markdown,
 }
 
 #[derive(Debug, clap::Args)]

@@ -2,6 +2,7 @@
 
 mod check;
 mod explain;
+mod modes;
 
 use std::io::{self, Write};
 use std::process::ExitCode;
@@ -32,6 +33,7 @@ impl From<Status> for ExitCode {
 pub fn run(cli: Cli) -> Status {
     let result = match cli.command {
         Command::Check(args) => check::run(&args),
+        Command::Modes(args) => modes::run(&args),
         Command::Explain(args) => explain::run(&args),
     };
     match result {

@@ -6,6 +6,7 @@ pub const CAUTION: &str = "Caution: results hold for linear lumped models only; 
 
 pub mod human;
 pub mod json;
+pub mod modes;
 
 use sprung_engine::{Diagnostic, Severity};
 use sprung_syntax::{Encoding, LineIndex, Span};
