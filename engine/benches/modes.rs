@@ -93,9 +93,14 @@ fn random(n: usize) -> Matrices {
 }
 
 fn bench(c: &mut Criterion) {
-    for (family, build) in [("chain", chain as fn(usize) -> Matrices), ("random", random)] {
+    for (family, build) in [
+        ("chain", chain as fn(usize) -> Matrices),
+        ("random", random),
+    ] {
         let mut group = c.benchmark_group(format!("undamped/{family}"));
-        group.sample_size(10).warm_up_time(Duration::from_millis(500));
+        group
+            .sample_size(10)
+            .warm_up_time(Duration::from_millis(500));
         for n in SIZES {
             let mats = build(n);
             group.bench_with_input(BenchmarkId::from_parameter(n), &mats, |b, m| {
@@ -105,7 +110,9 @@ fn bench(c: &mut Criterion) {
         group.finish();
 
         let mut group = c.benchmark_group(format!("state_matrix/{family}"));
-        group.sample_size(10).warm_up_time(Duration::from_millis(500));
+        group
+            .sample_size(10)
+            .warm_up_time(Duration::from_millis(500));
         for n in SIZES {
             let mats = build(n);
             group.bench_with_input(BenchmarkId::from_parameter(n), &mats, |b, m| {
@@ -115,7 +122,9 @@ fn bench(c: &mut Criterion) {
         group.finish();
 
         let mut group = c.benchmark_group(format!("analyze/{family}"));
-        group.sample_size(10).warm_up_time(Duration::from_millis(500));
+        group
+            .sample_size(10)
+            .warm_up_time(Duration::from_millis(500));
         for n in SIZES {
             let mats = build(n);
             group.bench_with_input(BenchmarkId::from_parameter(n), &mats, |b, m| {
