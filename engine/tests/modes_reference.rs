@@ -110,3 +110,39 @@ fn eigenvalues_match_scipy() {
         "worst relative gaps to scipy: ω² {worst_w2:e}, state matrix {worst_raw:e}, modal roots {worst_modal:e}"
     );
 }
+
+/// The same fixtures from their `.sprung` text (written in random units: t, g, lbm, kg; N/m,
+/// kN/m, lbf/in, N/mm; N*s/m, kN*s/m, lbf*s/in): the checker and the assembler must rebuild
+/// the SI matrices that scipy was given (unit factors from NIST SP 811, so 1e-12 relative),
+/// and the modal analysis of the checked model must give scipy's eigenvalues.
+#[test]
+fn the_sprung_texts_assemble_to_the_reference_matrices() {
+    let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../tests/reference/modal");
+    let mut checked_files = 0;
+    for (name, v) in fixtures() {
+        let sprung = dir.join(name.replace(".json", ".sprung"));
+        let text = std::fs::read_to_string(&sprung).expect("each fixture has its model text");
+        let checked = sprung_engine::check(&text);
+        assert!(!checked.has_errors(), "{name}: {:#?}", checked.diagnostics);
+        let sys = &checked.model.systems[0];
+        let mats = sprung_engine::assemble::assemble(&checked.model, sys, &[]).expect("assembles");
+        for (key, got) in [("M", &mats.m), ("C", &mats.c), ("K", &mats.k)] {
+            let want = matrix(&v[key]);
+            // An undamped fixture has C = 0: then the gap is absolute.
+            let scale = if want.amax() > 0.0 { want.amax() } else { 1.0 };
+            let gap = (got - &want).amax() / scale;
+            assert!(gap < 1e-12, "{name} {key}: relative gap {gap:e}");
+        }
+        let result = analyze(&mats, &ModalConfig::default()).expect("modes");
+        let expected: Vec<Complex<f64>> = v["state_eigenvalues"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|z| Complex::new(z[0].as_f64().unwrap(), z[1].as_f64().unwrap()))
+            .collect();
+        let gap = worst_multiset_gap(&expected, &result.roots());
+        assert!(gap < 1e-9, "{name}: eigenvalue gap {gap:e}");
+        checked_files += 1;
+    }
+    assert!(checked_files >= 20);
+}
