@@ -135,5 +135,48 @@ fn bench(c: &mut Criterion) {
     }
 }
 
-criterion_group!(benches, bench);
+/// A uniform chain written as model text: n masses of 2 kg on springs of 50 kN/m, each with a
+/// damper, fixed to ground at one end, and one modal requirement.
+fn chain_text(n: usize) -> String {
+    let mut t = format!(
+        "system chain {{\n  require damping >= 0.001\n  spring s0 between m1 and ground = 50 kN/m\n"
+    );
+    for i in 1..=n {
+        t.push_str(&format!("  mass m{i} = 2 kg\n"));
+        if i > 1 {
+            t.push_str(&format!(
+                "  spring s{i} between m{i} and m{} = 50 kN/m\n",
+                i - 1
+            ));
+        }
+        t.push_str(&format!(
+            "  damper d{i} between m{i} and ground = 3 N*s/m\n"
+        ));
+    }
+    t.push_str("}\n");
+    t
+}
+
+/// End to end from text: parse, check, assemble, undamped and damped modes, requirements.
+fn bench_from_text(c: &mut Criterion) {
+    let mut group = c.benchmark_group("from_text/chain");
+    group
+        .sample_size(10)
+        .warm_up_time(Duration::from_millis(500));
+    for n in SIZES {
+        let text = chain_text(n);
+        group.bench_with_input(BenchmarkId::from_parameter(n), &text, |b, t| {
+            b.iter(|| {
+                let checked = sprung_engine::check(t);
+                sprung_engine::analysis::analyze(
+                    &checked,
+                    &sprung_engine::analysis::Config::default(),
+                )
+            })
+        });
+    }
+    group.finish();
+}
+
+criterion_group!(benches, bench, bench_from_text);
 criterion_main!(benches);
