@@ -138,8 +138,8 @@ fn bench(c: &mut Criterion) {
 /// A uniform chain written as model text: n masses of 2 kg on springs of 50 kN/m, each with a
 /// damper, fixed to ground at one end, and one modal requirement.
 fn chain_text(n: usize) -> String {
-    let mut t = format!(
-        "system chain {{\n  require damping >= 0.001\n  spring s0 between m1 and ground = 50 kN/m\n"
+    let mut t = String::from(
+        "system chain {\n  require damping >= 0.001\n  spring s0 between m1 and ground = 50 kN/m\n",
     );
     for i in 1..=n {
         t.push_str(&format!("  mass m{i} = 2 kg\n"));
