@@ -22,21 +22,20 @@ pub enum Style {
 }
 
 impl Style {
-    /// Fancy when stdout (where `check` writes its reports) is a terminal and `NO_COLOR` is
-    /// unset or empty (no-color.org).
     /// As [`Style::detect`], for reports written to stderr.
     pub fn detect_stderr() -> Style {
-        let no_color = std::env::var_os("NO_COLOR").is_some_and(|v| !v.is_empty());
-        if io::stderr().is_terminal() && !no_color {
-            Style::Fancy
-        } else {
-            Style::Plain
-        }
+        Style::for_stream(io::stderr().is_terminal())
     }
 
+    /// Fancy when stdout (where `check` writes its reports) is a terminal and `NO_COLOR` is
+    /// unset or empty (no-color.org).
     pub fn detect() -> Style {
+        Style::for_stream(io::stdout().is_terminal())
+    }
+
+    fn for_stream(is_terminal: bool) -> Style {
         let no_color = std::env::var_os("NO_COLOR").is_some_and(|v| !v.is_empty());
-        if io::stdout().is_terminal() && !no_color {
+        if is_terminal && !no_color {
             Style::Fancy
         } else {
             Style::Plain
