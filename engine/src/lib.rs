@@ -16,7 +16,10 @@ pub mod formula;
 pub mod model;
 pub mod modes;
 pub mod requirements;
+pub mod response;
+pub mod statics;
 pub mod suggest;
+pub mod time_response;
 pub mod units;
 
 pub use check::{Checked, check};

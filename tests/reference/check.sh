@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
-# Reruns tests/reference/modal_reference.py with the pinned numpy and scipy
+# Reruns tests/reference/modal_reference.py and response_reference.py with the pinned numpy and scipy
 # (tests/reference/requirements.txt) into a temporary folder and compares the result with the
-# committed fixtures in tests/reference/modal/. Exit 0 when they agree, 1 when they differ,
+# committed fixtures in tests/reference/modal/ and response/. Exit 0 when they agree, 1 when they differ,
 # 2 when the reference environment cannot be set up.
 #
 # The Python environment lives in $SPRUNG_REFERENCE_VENV (default: .venv at the repository
@@ -39,3 +39,5 @@ trap 'rm -rf "$tmp"' EXIT
 export OPENBLAS_NUM_THREADS=1 OMP_NUM_THREADS=1
 "$python" "$here/modal_reference.py" --out "$tmp/modal"
 "$python" "$here/modal_reference.py" --compare "$here/modal" "$tmp/modal"
+"$python" "$here/response_reference.py" --out "$tmp/response"
+"$python" "$here/response_reference.py" --compare "$here/response" "$tmp/response"

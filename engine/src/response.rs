@@ -1,0 +1,824 @@
+//! Steady-state harmonic response of M ẍ + C ẋ + K x = f (language.md §4, §5).
+//!
+//! # Method
+//!
+//! At an angular frequency ω (rad/s) every coordinate moves as Re(X e^{iωt}) with
+//! X(ω) = (K − ω²M + iωC)⁻¹ F, solved as one complex LU with partial pivoting (nalgebra).
+//!
+//! - A `force` or `torque` drive puts its amplitude on its target coordinate: F = A eᵢ.
+//! - A `motion` of ground moves the ground end of every grounded element of the kind it
+//!   moves (translational for m, m/s, m/s²; rotational for rad). Its amplitude is turned into a
+//!   ground displacement Y at ω: Y = A (displacement, rotation), Y = V/(iω) (velocity),
+//!   Y = −A/ω² (acceleration). The load is F = (K_g + iωC_g) Y, where K_g, C_g hold the
+//!   grounded springs and dampers of that kind (diagonal).
+//! - The result holds the absolute motion X of every coordinate, the relative motion X − Y
+//!   (Y on the coordinates of the moved kind, 0 on the others), and the force each grounded
+//!   spring or damper puts on the ground: k(Xᵢ − Y) or iωc(Xᵢ − Y) (Y = 0 for a force drive
+//!   and for elements of the other kind). The total force into ground sums the grounded
+//!   elements of the drive's kind (the driven coordinate's kind for a force or torque).
+//!
+//! **Transmissibility** (§5): force drive: |total force into ground| / |applied amplitude|;
+//! motion drive: |X_A| / |Y| for a coordinate A, which may be left out only when exactly one
+//! coordinate is of the moved kind. **Amplitude of A**: |X_A| summed over the harmonic drives
+//! (a conservative bound: drives at different frequencies do not add in phase at all times),
+//! a band drive contributing its peak over the band. **Separation** from a drive: min over the
+//! non-rigid modes and over the drive's frequencies of |ωn − ω| / ω, in closed form (for a band
+//! [a, b]: 0 when ωn is inside, (a − ωn)/a below, (ωn − b)/b above).
+//!
+//! **Bands** ([`peak_over_band`]): 200 log-spaced points plus the band ends and every
+//! resonance hint (each natural frequency ωn and damped resonance ωn√(1−2ζ²)) inside the
+//! band; every local maximum of that augmented grid is refined by golden-section search over
+//! its two neighbours to a relative width of 1e-10 in ω. A resonance of ζ = 0.001 is 0.2% wide
+//! while the grid steps are about 2% apart: the hints are what catch it.
+
+use nalgebra::{DMatrix, DVector};
+use sprung_syntax::ast::{DriveKind, ElementKind};
+
+use crate::assemble::Matrices;
+use crate::eigen::Complex64;
+use crate::formula::{Evaluator, FormulaId};
+use crate::model::{DofKind, DriveForm, End, Model, MotionKind, SystemModel};
+use crate::modes::{ModalError, ModalResult, ModeRegime};
+
+/// Every way a response computation can fail; never a panic.
+#[derive(Clone, Debug, PartialEq)]
+pub enum ResponseError {
+    /// The matrices, inputs or coordinates do not fit together (a malformed model).
+    Shape,
+    /// A value is infinite or not a number.
+    NonFinite,
+    /// K − ω²M + iωC is singular at this ω (an undamped resonance hit exactly).
+    Singular { omega: f64 },
+    /// The quantity needs a harmonic drive (`at F` or `at F1 .. F2`), and this one is a step
+    /// or an impulse.
+    NotHarmonic,
+    /// The system has no harmonic drive at all (`amplitude of A` needs one).
+    NoHarmonicDrive,
+    /// The system has no step, impulse or initial condition (a time response needs one).
+    NoTransient,
+    /// A motion drive's transmissibility needs `to A`: more than one coordinate moves.
+    NeedsTarget,
+    /// The named coordinate is not of the kind the drive moves (or does not exist).
+    WrongKind { dof: usize },
+    /// A band whose ends are not 0 < lo < hi, or a frequency that is not positive.
+    BadBand { lo: f64, hi: f64 },
+    /// A rigid-body mode: no static equilibrium, no final value, no sag.
+    RigidBody,
+    /// A mode grows in time (negative stiffness or damping).
+    Unstable,
+    /// Every mode is rigid: nothing to separate a drive from.
+    NoElasticMode,
+    /// The modal analysis failed.
+    Modal(ModalError),
+    /// `sag` needs `gravity`.
+    NoGravity,
+    /// The response has not settled within the simulated window (an undamped mode, or a band
+    /// too narrow for the window).
+    NeverSettles,
+    /// Overshoot is relative to a final value, and this one is zero.
+    ZeroFinal,
+    /// A step in ground velocity or acceleration has no final position.
+    UnboundedStep { drive: usize },
+    /// The system is larger than the time-response limit.
+    TooLarge { dofs: usize, limit: usize },
+}
+
+impl std::fmt::Display for ResponseError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        use ResponseError as E;
+        match self {
+            E::Shape => f.write_str("the matrices and inputs do not fit together"),
+            E::NonFinite => f.write_str("a value is infinite or not a number"),
+            E::Singular { omega } => write!(
+                f,
+                "the dynamic stiffness is singular at {} Hz (an undamped resonance)",
+                omega / std::f64::consts::TAU
+            ),
+            E::NotHarmonic => {
+                f.write_str("the drive is a step or an impulse, not a harmonic drive")
+            }
+            E::NoHarmonicDrive => f.write_str("the system has no harmonic drive"),
+            E::NoTransient => {
+                f.write_str("the system has no step or impulse drive and no initial condition")
+            }
+            E::NeedsTarget => {
+                f.write_str("more than one coordinate moves with the ground; name one with `to`")
+            }
+            E::WrongKind { .. } => {
+                f.write_str("the coordinate is not of the kind that the drive moves")
+            }
+            E::BadBand { lo, hi } => write!(
+                f,
+                "the frequency band {} Hz .. {} Hz is empty or not positive",
+                lo / std::f64::consts::TAU,
+                hi / std::f64::consts::TAU
+            ),
+            E::RigidBody => {
+                f.write_str("the system has a rigid-body mode, so it has no static equilibrium")
+            }
+            E::Unstable => f.write_str("the system is unstable: a mode grows in time"),
+            E::NoElasticMode => f.write_str("every mode is a rigid-body mode"),
+            E::Modal(e) => e.fmt(f),
+            E::NoGravity => f.write_str("the system has no `gravity`"),
+            E::NeverSettles => {
+                f.write_str("the response does not settle within the simulated time")
+            }
+            E::ZeroFinal => f.write_str("the final value is zero, so overshoot is undefined"),
+            E::UnboundedStep { .. } => {
+                f.write_str("a step in ground velocity or acceleration has no final position")
+            }
+            E::TooLarge { dofs, limit } => write!(
+                f,
+                "the system has {dofs} degrees of freedom, more than the time-response limit of {limit}"
+            ),
+        }
+    }
+}
+
+impl std::error::Error for ResponseError {}
+
+impl From<ModalError> for ResponseError {
+    fn from(e: ModalError) -> Self {
+        ResponseError::Modal(e)
+    }
+}
+
+/// Spring or damper.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum LinkKind {
+    Spring,
+    Damper,
+}
+
+/// A spring or damper with one end on ground: the path by which force reaches the floor.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct GroundLink {
+    /// Index into [`SystemModel::elements`].
+    pub element: usize,
+    /// The coordinate at the other end.
+    pub dof: usize,
+    pub kind: LinkKind,
+    /// Translational or rotational (the kind of `dof`).
+    pub dof_kind: DofKind,
+    /// N/m, N·m/rad, N·s/m or N·m·s/rad.
+    pub value: f64,
+}
+
+/// Where a drive acts.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Excitation {
+    /// A force or torque on one coordinate.
+    Load { dof: usize },
+    /// The ground moves under every grounded element of `kind`.
+    Base { kind: DofKind, motion: MotionKind },
+}
+
+/// How a drive varies in time; frequencies in rad/s.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Waveform {
+    Harmonic { omega: f64 },
+    Band { lo: f64, hi: f64 },
+    Step,
+    Impulse,
+}
+
+/// One drive evaluated at a corner: SI amplitude (N, N·m, m, m/s, m/s², rad; N·s for an
+/// impulse).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct DriveInput {
+    pub excitation: Excitation,
+    pub amplitude: f64,
+    pub waveform: Waveform,
+}
+
+/// An `initial` statement evaluated: displacement (m or rad) and velocity.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct InitialState {
+    pub dof: usize,
+    pub displacement: f64,
+    pub velocity: f64,
+}
+
+/// Everything besides M, C, K that the response needs, at one corner.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Inputs {
+    pub ground: Vec<GroundLink>,
+    /// In [`SystemModel::drives`] order.
+    pub drives: Vec<DriveInput>,
+    pub initials: Vec<InitialState>,
+    /// m/s², along the translational coordinates.
+    pub gravity: Option<f64>,
+}
+
+/// Evaluates the drives, initial conditions, gravity and grounded elements of one system at
+/// any corner (the counterpart of [`crate::assemble::Assembler`]).
+pub struct InputEvaluator<'m> {
+    sys: &'m SystemModel,
+    evaluator: Evaluator<'m>,
+}
+
+impl<'m> InputEvaluator<'m> {
+    pub fn new(model: &'m Model, sys: &'m SystemModel) -> Result<Self, ResponseError> {
+        let mut roots: Vec<FormulaId> = sys.elements.iter().map(|e| e.value.formula).collect();
+        for d in &sys.drives {
+            match &d.form {
+                DriveForm::Harmonic {
+                    amplitude,
+                    frequency,
+                } => roots.extend([amplitude.formula, frequency.formula]),
+                DriveForm::Band {
+                    amplitude,
+                    from,
+                    to,
+                } => roots.extend([amplitude.formula, from.formula, to.formula]),
+                DriveForm::Step { amplitude } | DriveForm::Impulse { amplitude } => {
+                    roots.push(amplitude.formula)
+                }
+            }
+        }
+        for i in &sys.initials {
+            roots.push(i.displacement.formula);
+            roots.extend(i.velocity.map(|v| v.formula));
+        }
+        roots.extend(sys.gravity.map(|g| g.formula));
+        if roots.iter().any(|id| id.index() >= model.formulas.len()) {
+            return Err(ResponseError::Shape);
+        }
+        Ok(InputEvaluator {
+            sys,
+            evaluator: Evaluator::new(&model.formulas, &roots),
+        })
+    }
+
+    /// The inputs at `deviations` (indexed like [`Model::params`]; empty = nominal).
+    pub fn evaluate(&mut self, deviations: &[f64]) -> Result<Inputs, ResponseError> {
+        self.evaluator.run(deviations);
+        let ev = &self.evaluator;
+        let n = self.sys.dofs.len();
+        let finite = |x: f64| {
+            if x.is_finite() {
+                Ok(x)
+            } else {
+                Err(ResponseError::NonFinite)
+            }
+        };
+        let mut ground = Vec::new();
+        for (index, e) in self.sys.elements.iter().enumerate() {
+            let dof = match (e.a, e.b) {
+                (End::Dof(i), End::Ground) | (End::Ground, End::Dof(i)) => i,
+                _ => continue,
+            };
+            let Some(d) = self.sys.dofs.get(dof) else {
+                return Err(ResponseError::Shape);
+            };
+            ground.push(GroundLink {
+                element: index,
+                dof,
+                kind: match e.kind {
+                    ElementKind::Spring => LinkKind::Spring,
+                    ElementKind::Damper => LinkKind::Damper,
+                },
+                dof_kind: d.kind,
+                value: finite(ev.get(e.value.formula))?,
+            });
+        }
+        let mut drives = Vec::with_capacity(self.sys.drives.len());
+        for d in &self.sys.drives {
+            let excitation = match (d.kind, d.target, d.motion) {
+                (DriveKind::Motion, _, Some(motion)) => Excitation::Base {
+                    kind: if motion == MotionKind::Rotation {
+                        DofKind::Rotational
+                    } else {
+                        DofKind::Translational
+                    },
+                    motion,
+                },
+                (_, Some(dof), _) if dof < n => Excitation::Load { dof },
+                _ => return Err(ResponseError::Shape),
+            };
+            let (amplitude, waveform) = match &d.form {
+                DriveForm::Harmonic {
+                    amplitude,
+                    frequency,
+                } => (
+                    ev.get(amplitude.formula),
+                    Waveform::Harmonic {
+                        omega: finite(ev.get(frequency.formula))?,
+                    },
+                ),
+                DriveForm::Band {
+                    amplitude,
+                    from,
+                    to,
+                } => (
+                    ev.get(amplitude.formula),
+                    Waveform::Band {
+                        lo: finite(ev.get(from.formula))?,
+                        hi: finite(ev.get(to.formula))?,
+                    },
+                ),
+                DriveForm::Step { amplitude } => (ev.get(amplitude.formula), Waveform::Step),
+                DriveForm::Impulse { amplitude } => (ev.get(amplitude.formula), Waveform::Impulse),
+            };
+            drives.push(DriveInput {
+                excitation,
+                amplitude: finite(amplitude)?,
+                waveform,
+            });
+        }
+        let mut initials = Vec::with_capacity(self.sys.initials.len());
+        for i in &self.sys.initials {
+            if i.dof >= n {
+                return Err(ResponseError::Shape);
+            }
+            initials.push(InitialState {
+                dof: i.dof,
+                displacement: finite(ev.get(i.displacement.formula))?,
+                velocity: match i.velocity {
+                    Some(v) => finite(ev.get(v.formula))?,
+                    None => 0.0,
+                },
+            });
+        }
+        let gravity = match self.sys.gravity {
+            Some(g) => Some(finite(ev.get(g.formula))?),
+            None => None,
+        };
+        Ok(Inputs {
+            ground,
+            drives,
+            initials,
+            gravity,
+        })
+    }
+}
+
+/// The steady-state response at one frequency.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Harmonic {
+    /// rad/s.
+    pub omega: f64,
+    /// The complex input: the applied force or torque F, or the ground displacement Y.
+    pub input: Complex64,
+    /// Absolute complex amplitude of every coordinate (m or rad); phase relative to the drive.
+    pub x: DVector<Complex64>,
+    /// X − Y (Y on the coordinates the ground motion moves, 0 elsewhere).
+    pub relative: DVector<Complex64>,
+    /// The force (or torque) each grounded element puts on the ground, in `ground` order.
+    pub link_forces: Vec<Complex64>,
+    /// The sum of `link_forces` over the elements of the drive's kind.
+    pub ground_force: Complex64,
+}
+
+fn check_matrices(mats: &Matrices) -> Result<usize, ResponseError> {
+    let n = mats.dofs();
+    if mats.m.shape() != (n, n)
+        || mats.c.shape() != (n, n)
+        || mats.k.shape() != (n, n)
+        || mats.dof_kinds.len() != n
+    {
+        return Err(ResponseError::Shape);
+    }
+    if [&mats.m, &mats.c, &mats.k]
+        .iter()
+        .any(|a| a.iter().any(|x| !x.is_finite()))
+    {
+        return Err(ResponseError::NonFinite);
+    }
+    Ok(n)
+}
+
+/// The coordinate kind an excitation acts on.
+pub fn excitation_kind(mats: &Matrices, excitation: Excitation) -> Result<DofKind, ResponseError> {
+    match excitation {
+        Excitation::Load { dof } => mats.dof_kinds.get(dof).copied().ok_or(ResponseError::Shape),
+        Excitation::Base { kind, .. } => Ok(kind),
+    }
+}
+
+/// The steady-state response to one drive of amplitude `amplitude` (SI) at ω (rad/s, > 0).
+pub fn harmonic(
+    mats: &Matrices,
+    ground: &[GroundLink],
+    excitation: Excitation,
+    amplitude: f64,
+    omega: f64,
+) -> Result<Harmonic, ResponseError> {
+    let n = check_matrices(mats)?;
+    if !(omega > 0.0 && omega.is_finite()) {
+        return Err(ResponseError::BadBand {
+            lo: omega,
+            hi: omega,
+        });
+    }
+    if !amplitude.is_finite() {
+        return Err(ResponseError::NonFinite);
+    }
+    if ground.iter().any(|g| g.dof >= n) {
+        return Err(ResponseError::Shape);
+    }
+    let kind = excitation_kind(mats, excitation)?;
+    let iw = Complex64::new(0.0, omega);
+    let (input, y, f) = match excitation {
+        Excitation::Load { dof } => {
+            let mut f = DVector::from_element(n, Complex64::new(0.0, 0.0));
+            f[dof] = Complex64::new(amplitude, 0.0);
+            (f[dof], Complex64::new(0.0, 0.0), f)
+        }
+        Excitation::Base { motion, .. } => {
+            let y = match motion {
+                MotionKind::Displacement | MotionKind::Rotation => Complex64::new(amplitude, 0.0),
+                MotionKind::Velocity => Complex64::new(amplitude, 0.0) / iw,
+                MotionKind::Acceleration => Complex64::new(-amplitude / (omega * omega), 0.0),
+            };
+            let mut f = DVector::from_element(n, Complex64::new(0.0, 0.0));
+            for g in ground.iter().filter(|g| g.dof_kind == kind) {
+                f[g.dof] += link_admittance(g, iw) * y;
+            }
+            (y, y, f)
+        }
+    };
+    let w2 = omega * omega;
+    let dyn_stiffness = DMatrix::from_fn(n, n, |i, j| {
+        Complex64::new(mats.k[(i, j)] - w2 * mats.m[(i, j)], omega * mats.c[(i, j)])
+    });
+    let x = dyn_stiffness
+        .lu()
+        .solve(&f)
+        .ok_or(ResponseError::Singular { omega })?;
+    if x.iter().any(|z| !z.re.is_finite() || !z.im.is_finite()) {
+        return Err(ResponseError::Singular { omega });
+    }
+    let moved = |i: usize| match excitation {
+        Excitation::Base { .. } if mats.dof_kinds[i] == kind => y,
+        _ => Complex64::new(0.0, 0.0),
+    };
+    let relative = DVector::from_fn(n, |i, _| x[i] - moved(i));
+    let link_forces: Vec<Complex64> = ground
+        .iter()
+        .map(|g| link_admittance(g, iw) * relative[g.dof])
+        .collect();
+    let ground_force = ground
+        .iter()
+        .zip(&link_forces)
+        .filter(|(g, _)| g.dof_kind == kind)
+        .map(|(_, f)| *f)
+        .sum();
+    Ok(Harmonic {
+        omega,
+        input,
+        x,
+        relative,
+        link_forces,
+        ground_force,
+    })
+}
+
+/// k or iωc.
+fn link_admittance(g: &GroundLink, iw: Complex64) -> Complex64 {
+    match g.kind {
+        LinkKind::Spring => Complex64::new(g.value, 0.0),
+        LinkKind::Damper => iw * g.value,
+    }
+}
+
+/// The transmissibility of one drive at ω: force drive |ground force| / |F|; motion drive
+/// |X_A| / |Y|.
+pub fn transmissibility_at(
+    mats: &Matrices,
+    ground: &[GroundLink],
+    excitation: Excitation,
+    to: Option<usize>,
+    omega: f64,
+) -> Result<f64, ResponseError> {
+    let target = match excitation {
+        Excitation::Load { .. } => None,
+        Excitation::Base { kind, .. } => Some(base_target(mats, kind, to)?),
+    };
+    // Transmissibility is a ratio: a unit amplitude gives it directly.
+    let h = harmonic(mats, ground, excitation, 1.0, omega)?;
+    let denom = h.input.norm();
+    if denom == 0.0 {
+        return Err(ResponseError::NonFinite);
+    }
+    Ok(match target {
+        None => h.ground_force.norm() / denom,
+        Some(a) => h.x[a].norm() / denom,
+    })
+}
+
+/// The coordinate whose motion a base-motion transmissibility reports.
+fn base_target(mats: &Matrices, kind: DofKind, to: Option<usize>) -> Result<usize, ResponseError> {
+    match to {
+        Some(a) => match mats.dof_kinds.get(a) {
+            Some(k) if *k == kind => Ok(a),
+            _ => Err(ResponseError::WrongKind { dof: a }),
+        },
+        None => {
+            let mut of_kind = (0..mats.dofs()).filter(|&i| mats.dof_kinds[i] == kind);
+            match (of_kind.next(), of_kind.next()) {
+                (Some(a), None) => Ok(a),
+                (None, _) => Err(ResponseError::WrongKind { dof: 0 }),
+                (Some(_), Some(_)) => Err(ResponseError::NeedsTarget),
+            }
+        }
+    }
+}
+
+/// The largest (or smallest) value over a band and where it is.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct BandExtreme {
+    /// rad/s.
+    pub omega: f64,
+    pub value: f64,
+}
+
+/// The transmissibility of a drive: at its frequency, or the peak over its band.
+pub fn transmissibility(
+    mats: &Matrices,
+    ground: &[GroundLink],
+    drive: &DriveInput,
+    to: Option<usize>,
+    modal: &ModalResult,
+) -> Result<BandExtreme, ResponseError> {
+    let f = |w: f64| transmissibility_at(mats, ground, drive.excitation, to, w);
+    over_waveform(drive, f, modal)
+}
+
+/// Evaluates `f` at a harmonic drive's frequency or its peak over the band.
+fn over_waveform(
+    drive: &DriveInput,
+    mut f: impl FnMut(f64) -> Result<f64, ResponseError>,
+    modal: &ModalResult,
+) -> Result<BandExtreme, ResponseError> {
+    match drive.waveform {
+        Waveform::Harmonic { omega } => Ok(BandExtreme {
+            omega,
+            value: f(omega)?,
+        }),
+        Waveform::Band { lo, hi } => peak_over_band(f, lo, hi, &resonance_hints(modal)),
+        Waveform::Step | Waveform::Impulse => Err(ResponseError::NotHarmonic),
+    }
+}
+
+/// The steady-state displacement amplitude |X_A| of coordinate `dof` under one harmonic drive
+/// (its peak over a band).
+pub fn amplitude_under(
+    mats: &Matrices,
+    ground: &[GroundLink],
+    drive: &DriveInput,
+    dof: usize,
+    modal: &ModalResult,
+) -> Result<BandExtreme, ResponseError> {
+    if dof >= mats.dofs() {
+        return Err(ResponseError::Shape);
+    }
+    let f =
+        |w: f64| Ok(harmonic(mats, ground, drive.excitation, drive.amplitude, w)?.x[dof].norm());
+    over_waveform(drive, f, modal)
+}
+
+/// `amplitude of A`: |X_A| summed over every harmonic drive, a band drive contributing its peak.
+pub fn amplitude(
+    mats: &Matrices,
+    ground: &[GroundLink],
+    drives: &[DriveInput],
+    dof: usize,
+    modal: &ModalResult,
+) -> Result<f64, ResponseError> {
+    let mut total = 0.0;
+    let mut any = false;
+    for d in drives {
+        if matches!(
+            d.waveform,
+            Waveform::Harmonic { .. } | Waveform::Band { .. }
+        ) {
+            any = true;
+            total += amplitude_under(mats, ground, d, dof, modal)?.value;
+        }
+    }
+    if any {
+        Ok(total)
+    } else {
+        Err(ResponseError::NoHarmonicDrive)
+    }
+}
+
+/// The worst separation of a drive from the modes.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Separation {
+    /// min |ωn − ω| / ω.
+    pub value: f64,
+    /// 1-based index of the closest mode.
+    pub mode: usize,
+    /// The drive frequency (rad/s) where the minimum is reached.
+    pub omega: f64,
+}
+
+/// `separation from DRIVE`: min over the non-rigid modes and over the drive's frequencies of
+/// |ωn − ω| / ω (closed form over a band).
+pub fn separation(drive: &DriveInput, modal: &ModalResult) -> Result<Separation, ResponseError> {
+    let (lo, hi) = match drive.waveform {
+        Waveform::Harmonic { omega } => (omega, omega),
+        Waveform::Band { lo, hi } => (lo, hi),
+        Waveform::Step | Waveform::Impulse => {
+            return Err(ResponseError::NotHarmonic);
+        }
+    };
+    if !(lo > 0.0 && lo <= hi && hi.is_finite()) {
+        return Err(ResponseError::BadBand { lo, hi });
+    }
+    let mut best: Option<Separation> = None;
+    for mode in &modal.modes {
+        if mode.regime == ModeRegime::RigidBody {
+            continue;
+        }
+        let wn = mode.natural_frequency;
+        let (value, omega) = if wn < lo {
+            ((lo - wn) / lo, lo)
+        } else if wn > hi {
+            ((wn - hi) / hi, hi)
+        } else {
+            (0.0, wn)
+        };
+        if best.is_none_or(|b| value < b.value) {
+            best = Some(Separation {
+                value,
+                mode: mode.index,
+                omega,
+            });
+        }
+    }
+    best.ok_or(ResponseError::NoElasticMode)
+}
+
+/// The frequencies (rad/s) near which a response peak can hide: each natural frequency ωn and,
+/// for 0 < ζ < 1/√2, the damped resonance ωn√(1−2ζ²) of displacement under a force.
+pub fn resonance_hints(modal: &ModalResult) -> Vec<f64> {
+    let mut out = Vec::new();
+    for m in &modal.modes {
+        let wn = m.natural_frequency;
+        if !(wn > 0.0 && wn.is_finite()) {
+            continue;
+        }
+        out.push(wn);
+        if let Some(z) = m.damping_ratio
+            && z > 0.0
+            && 2.0 * z * z < 1.0
+        {
+            out.push(wn * (1.0 - 2.0 * z * z).sqrt());
+        }
+        if let Some(wd) = m.damped_frequency
+            && wd > 0.0
+        {
+            out.push(wd);
+        }
+    }
+    out
+}
+
+/// Grid points of the band search (besides ends and hints).
+pub const BAND_GRID_POINTS: usize = 200;
+/// Relative width in ω to which a peak is refined.
+pub const BAND_TOLERANCE: f64 = 1e-10;
+
+/// The maximum of `f` over [lo, hi] (rad/s): a log-spaced grid of [`BAND_GRID_POINTS`] points,
+/// plus the band ends and every `hints` frequency inside the band, and a golden-section
+/// refinement of every local maximum of that grid between its neighbours to a relative width
+/// of [`BAND_TOLERANCE`]. `lo == hi` evaluates one frequency.
+pub fn peak_over_band(
+    mut f: impl FnMut(f64) -> Result<f64, ResponseError>,
+    lo: f64,
+    hi: f64,
+    hints: &[f64],
+) -> Result<BandExtreme, ResponseError> {
+    if !(lo > 0.0 && lo <= hi && hi.is_finite()) {
+        return Err(ResponseError::BadBand { lo, hi });
+    }
+    let mut eval = |w: f64| -> Result<f64, ResponseError> {
+        let v = f(w)?;
+        if v.is_nan() {
+            Err(ResponseError::NonFinite)
+        } else {
+            Ok(v)
+        }
+    };
+    if lo == hi {
+        return Ok(BandExtreme {
+            omega: lo,
+            value: eval(lo)?,
+        });
+    }
+    let ratio = (hi / lo).ln();
+    let mut grid: Vec<f64> = (0..BAND_GRID_POINTS)
+        .map(|i| lo * (ratio * i as f64 / (BAND_GRID_POINTS - 1) as f64).exp())
+        .collect();
+    grid.push(lo);
+    grid.push(hi);
+    grid.extend(hints.iter().copied().filter(|h| *h >= lo && *h <= hi));
+    grid.sort_by(f64::total_cmp);
+    grid.dedup();
+    let values: Vec<f64> = grid.iter().map(|&w| eval(w)).collect::<Result<_, _>>()?;
+    let mut best = BandExtreme {
+        omega: grid[0],
+        value: values[0],
+    };
+    for (w, v) in grid.iter().zip(&values) {
+        if *v > best.value {
+            best = BandExtreme {
+                omega: *w,
+                value: *v,
+            };
+        }
+    }
+    let last = grid.len() - 1;
+    for i in 0..=last {
+        let left = if i == 0 {
+            f64::NEG_INFINITY
+        } else {
+            values[i - 1]
+        };
+        let right = if i == last {
+            f64::NEG_INFINITY
+        } else {
+            values[i + 1]
+        };
+        if values[i] < left || values[i] < right {
+            continue;
+        }
+        let a = grid[i.saturating_sub(1)];
+        let b = grid[(i + 1).min(last)];
+        if b <= a {
+            continue;
+        }
+        let found = golden_max(&mut eval, a, b, grid[i], values[i])?;
+        if found.value > best.value {
+            best = found;
+        }
+    }
+    Ok(best)
+}
+
+/// The minimum of `f` over [lo, hi], found as for [`peak_over_band`].
+pub fn min_over_band(
+    mut f: impl FnMut(f64) -> Result<f64, ResponseError>,
+    lo: f64,
+    hi: f64,
+    hints: &[f64],
+) -> Result<BandExtreme, ResponseError> {
+    let peak = peak_over_band(|w| f(w).map(|v| -v), lo, hi, hints)?;
+    Ok(BandExtreme {
+        omega: peak.omega,
+        value: -peak.value,
+    })
+}
+
+/// Golden-section search for a maximum of `f` in [a, b] (log-frequency coordinate), starting
+/// from a known point `(w0, v0)` that is returned if nothing better is found.
+fn golden_max(
+    f: &mut impl FnMut(f64) -> Result<f64, ResponseError>,
+    a: f64,
+    b: f64,
+    w0: f64,
+    v0: f64,
+) -> Result<BandExtreme, ResponseError> {
+    const INV_PHI: f64 = 0.618_033_988_749_894_8;
+    let (mut a, mut b) = (a.ln(), b.ln());
+    let mut best = BandExtreme {
+        omega: w0,
+        value: v0,
+    };
+    let mut c = b - INV_PHI * (b - a);
+    let mut d = a + INV_PHI * (b - a);
+    let mut fc = f(c.exp())?;
+    let mut fd = f(d.exp())?;
+    // ln-width 1e-10 is a relative width of 1e-10 in ω; 200 iterations is far more than the
+    // ~50 that any band of the search needs, and bounds the loop whatever f does.
+    for _ in 0..200 {
+        if b - a <= BAND_TOLERANCE {
+            break;
+        }
+        if fc >= fd {
+            b = d;
+            d = c;
+            fd = fc;
+            c = b - INV_PHI * (b - a);
+            fc = f(c.exp())?;
+        } else {
+            a = c;
+            c = d;
+            fc = fd;
+            d = a + INV_PHI * (b - a);
+            fd = f(d.exp())?;
+        }
+    }
+    for (x, v) in [(c, fc), (d, fd)] {
+        if v > best.value {
+            best = BandExtreme {
+                omega: x.exp(),
+                value: v,
+            };
+        }
+    }
+    Ok(best)
+}
