@@ -11,6 +11,10 @@ use crate::diagnostics::{Code, Diagnostic};
 use crate::model::{End, Model, SystemModel};
 use crate::modes::{self, ModalConfig, ModalResult, ModeRegime};
 use crate::requirements::{self, ModeSummary, Status, Verdict};
+use crate::response::{self, InputEvaluator, Waveform};
+use crate::statics;
+use crate::time_response::{self, TimeConfig};
+use sprung_syntax::ast::Subject;
 
 /// Settings of the analysis stage.
 #[derive(Clone, Debug, Default)]
@@ -153,87 +157,23 @@ fn analyze_system(
     };
     dampers_not_felt(sys, &nominal, diags);
 
-    let modal: Vec<usize> = (0..sys.requirements.len())
-        .filter(|&i| requirements::is_modal(&sys.requirements[i].subject))
-        .collect();
-    let mut verdicts: Vec<Option<Verdict>> = vec![None; sys.requirements.len()];
-    if !modal.is_empty() {
-        if !corners::within_limit(sys) {
-            diags.push(Diagnostic::new(
-                Code::TooManyCorners,
-                sys.name_span,
-                format!(
-                    "system `{}` depends on {} toleranced values, a box of 2^{} corners; the limit is 2^16, so its requirements are not evaluated",
-                    sys.name,
-                    sys.params.len(),
-                    sys.params.len()
-                ),
-            ));
-            for &i in &modal {
-                verdicts[i] = Some(requirements::not_evaluated(
-                    "too many tolerance corners".into(),
-                ));
-            }
-        } else {
-            let mut points: Vec<(Corner, Result<Vec<ModeSummary>, String>)> = Vec::new();
-            for corner in corners::corners(model, sys) {
-                let modes = if corner.is_nominal() {
-                    Ok(summaries(&nominal))
-                } else {
-                    solve(&mut assembler, &corner).map(|r| summaries(&r))
-                };
-                points.push((corner, modes));
-            }
-            let rigid: Vec<usize> = nominal
-                .modes
-                .iter()
-                .enumerate()
-                .filter(|(_, m)| m.regime == ModeRegime::RigidBody)
-                .map(|(i, _)| i + 1)
-                .collect();
-            for &i in &modal {
-                let req = &sys.requirements[i];
-                let v = requirements::evaluate_modal(&model.formulas, req, &points);
-                if req.mode.is_none() && !rigid.is_empty() {
-                    let list: Vec<String> = rigid.iter().map(|m| m.to_string()).collect();
-                    diags.push(Diagnostic::new(
-                        Code::RigidExcepted,
-                        req.span,
-                        format!(
-                            "rigid-body mode{} {} excepted from this requirement",
-                            if rigid.len() == 1 { "" } else { "s" },
-                            list.join(", ")
-                        ),
-                    ));
-                }
-                if let Status::NotEvaluated(why) = &v.status {
-                    diags.push(Diagnostic::new(
-                        Code::NotYetEvaluated,
-                        req.span,
-                        format!("not evaluated: {why}"),
-                    ));
-                }
-                verdicts[i] = Some(v);
-            }
-        }
-    }
-    let verdicts: Vec<Verdict> = verdicts
-        .into_iter()
-        .enumerate()
-        .map(|(i, v)| {
-            v.unwrap_or_else(|| {
-                let req = &sys.requirements[i];
-                let word = req.subject.word();
-                let why = format!("`{word}` requirements are not evaluated yet by this version");
-                diags.push(Diagnostic::new(
-                    Code::NotYetEvaluated,
-                    req.span,
-                    why.clone(),
-                ));
-                requirements::not_evaluated(why)
-            })
-        })
-        .collect();
+    let verdicts = if sys.requirements.is_empty() {
+        Vec::new()
+    } else if !corners::within_limit(sys) {
+        diags.push(Diagnostic::new(
+            Code::TooManyCorners,
+            sys.name_span,
+            format!(
+                "system `{}` depends on {} toleranced values, a box of 2^{} corners; the limit is 2^16, so its requirements are not evaluated",
+                sys.name,
+                sys.params.len(),
+                sys.params.len()
+            ),
+        ));
+        all_not("too many tolerance corners")
+    } else {
+        evaluate_requirements(model, sys, config, &mut assembler, &nominal, diags)
+    };
     for (req, v) in sys.requirements.iter().zip(&verdicts) {
         if v.status == Status::Failed {
             diags.push(Diagnostic::new(
@@ -247,6 +187,211 @@ fn analyze_system(
         modes: Some(nominal),
         verdicts,
     }
+}
+
+/// What one corner gives every requirement: the modes for the modal subjects, the measured
+/// value (or why it could not be measured) for each driven-response requirement.
+struct CornerResult {
+    modes: Result<Vec<ModeSummary>, String>,
+    values: Vec<Option<Result<f64, String>>>,
+}
+
+fn evaluate_requirements(
+    model: &Model,
+    sys: &SystemModel,
+    config: &Config,
+    assembler: &mut Assembler<'_>,
+    nominal: &ModalResult,
+    diags: &mut Vec<Diagnostic>,
+) -> Vec<Verdict> {
+    let needs_response = sys
+        .requirements
+        .iter()
+        .any(|r| !requirements::is_modal(&r.subject));
+    let needs_time = sys.requirements.iter().any(|r| {
+        matches!(
+            r.subject,
+            Subject::Settling { .. } | Subject::Overshoot { .. }
+        )
+    });
+    let mut inputs = if needs_response {
+        Some(InputEvaluator::new(model, sys).map_err(|e| e.to_string()))
+    } else {
+        None
+    };
+    let mut points: Vec<(Corner, CornerResult)> = Vec::new();
+    for corner in corners::corners(model, sys) {
+        let mats = assembler
+            .assemble(&corner.deviations)
+            .map_err(|e| e.to_string());
+        let modal = match (&mats, corner.is_nominal()) {
+            (Ok(_), true) => Ok(nominal.clone()),
+            (Ok(m), false) => modes::analyze(m, &config.modal).map_err(|e| e.to_string()),
+            (Err(e), _) => Err(e.clone()),
+        };
+        let modes = modal.as_ref().map(summaries).map_err(Clone::clone);
+        let values = match (&mut inputs, &mats, &modal) {
+            (None, _, _) => vec![None; sys.requirements.len()],
+            (Some(Err(e)), _, _) => sys
+                .requirements
+                .iter()
+                .map(|r| (!requirements::is_modal(&r.subject)).then(|| Err(e.clone())))
+                .collect(),
+            (Some(Ok(ev)), Ok(mats), Ok(modal)) => match ev.evaluate(&corner.deviations) {
+                Ok(inp) => measure_all(sys, mats, modal, &inp, needs_time),
+                Err(e) => sys
+                    .requirements
+                    .iter()
+                    .map(|r| (!requirements::is_modal(&r.subject)).then(|| Err(e.to_string())))
+                    .collect(),
+            },
+            (Some(Ok(_)), Err(e), _) | (Some(Ok(_)), _, Err(e)) => sys
+                .requirements
+                .iter()
+                .map(|r| (!requirements::is_modal(&r.subject)).then(|| Err(e.clone())))
+                .collect(),
+        };
+        points.push((corner, CornerResult { modes, values }));
+    }
+    let rigid: Vec<usize> = nominal
+        .modes
+        .iter()
+        .enumerate()
+        .filter(|(_, m)| m.regime == ModeRegime::RigidBody)
+        .map(|(i, _)| i + 1)
+        .collect();
+    let mut verdicts = Vec::with_capacity(sys.requirements.len());
+    for (i, req) in sys.requirements.iter().enumerate() {
+        let v = if requirements::is_modal(&req.subject) {
+            let modal_points: Vec<(Corner, Result<Vec<ModeSummary>, String>)> = points
+                .iter()
+                .map(|(c, r)| (c.clone(), r.modes.clone()))
+                .collect();
+            if req.mode.is_none() && !rigid.is_empty() {
+                let list: Vec<String> = rigid.iter().map(|m| m.to_string()).collect();
+                diags.push(Diagnostic::new(
+                    Code::RigidExcepted,
+                    req.span,
+                    format!(
+                        "rigid-body mode{} {} excepted from this requirement",
+                        if rigid.len() == 1 { "" } else { "s" },
+                        list.join(", ")
+                    ),
+                ));
+            }
+            requirements::evaluate_modal(&model.formulas, req, &modal_points)
+        } else {
+            let values: Vec<(Corner, Result<f64, String>)> = points
+                .iter()
+                .map(|(c, r)| {
+                    let v = r.values[i]
+                        .clone()
+                        .unwrap_or_else(|| Err("not measured".to_string()));
+                    (c.clone(), v)
+                })
+                .collect();
+            requirements::evaluate_response(&model.formulas, req, &values)
+        };
+        if let Status::NotEvaluated(why) = &v.status {
+            diags.push(Diagnostic::new(
+                Code::NotYetEvaluated,
+                req.span,
+                format!("not evaluated: {why}"),
+            ));
+        }
+        verdicts.push(v);
+    }
+    verdicts
+}
+
+/// The driven-response value of every non-modal requirement at one corner.
+fn measure_all(
+    sys: &SystemModel,
+    mats: &crate::assemble::Matrices,
+    modal: &ModalResult,
+    inputs: &response::Inputs,
+    needs_time: bool,
+) -> Vec<Option<Result<f64, String>>> {
+    let run = |inputs: &response::Inputs| {
+        time_response::loading(mats, inputs)
+            .and_then(|l| time_response::simulate(mats, &l, modal, &TimeConfig::default()))
+    };
+    let wants =
+        |f: fn(&Subject) -> bool| needs_time && sys.requirements.iter().any(|r| f(&r.subject));
+    // Settling is judged under every transient load (steps, impulses, initial conditions);
+    // overshoot under the step drives alone (language.md §5).
+    let transient = wants(|s| matches!(s, Subject::Settling { .. })).then(|| run(inputs));
+    let steps_only = wants(|s| matches!(s, Subject::Overshoot { .. })).then(|| {
+        let steps = response::Inputs {
+            drives: inputs
+                .drives
+                .iter()
+                .filter(|d| d.waveform == Waveform::Step)
+                .cloned()
+                .collect(),
+            initials: Vec::new(),
+            ..inputs.clone()
+        };
+        run(&steps)
+    });
+    let err = |e: response::ResponseError| e.to_string();
+    sys.requirements
+        .iter()
+        .map(|req| {
+            let dof = req.dof.unwrap_or(0);
+            let drive = req.drive.and_then(|d| inputs.drives.get(d));
+            Some(
+                match (
+                    &req.subject,
+                    drive,
+                    if matches!(req.subject, Subject::Overshoot { .. }) {
+                        &steps_only
+                    } else {
+                        &transient
+                    },
+                ) {
+                    (s, _, _) if requirements::is_modal(s) => return None,
+                    (Subject::Separation { .. }, Some(d), _) => {
+                        response::separation(d, modal).map(|s| s.value).map_err(err)
+                    }
+                    (Subject::Transmissibility { .. }, Some(d), _) => {
+                        response::transmissibility(mats, &inputs.ground, d, req.dof, modal)
+                            .map(|b| b.value)
+                            .map_err(err)
+                    }
+                    (Subject::Amplitude { .. }, _, _) => {
+                        response::amplitude(mats, &inputs.ground, &inputs.drives, dof, modal)
+                            .map_err(err)
+                    }
+                    (Subject::Sag { .. }, _, _) => match inputs.gravity {
+                        Some(g) => statics::sag(mats, g).map_err(err).and_then(|x| {
+                            x.get(dof)
+                                .copied()
+                                .ok_or_else(|| "no such coordinate".to_string())
+                        }),
+                        None => Err("the system states no gravity".to_string()),
+                    },
+                    (Subject::Settling { .. }, _, Some(t)) => {
+                        let within = req.within.map_or(0.02, |q| q.nominal);
+                        t.as_ref()
+                            .map_err(|e| e.to_string())
+                            .and_then(|t| t.settling_time(dof, within).map_err(err))
+                    }
+                    (Subject::Overshoot { .. }, _, Some(t)) => {
+                        t.as_ref().map_err(|e| e.to_string()).and_then(|t| {
+                            if t.has_step {
+                                t.overshoot(dof).map_err(err)
+                            } else {
+                                Err("`overshoot` needs a `step` drive, and this system has none"
+                                    .to_string())
+                            }
+                        })
+                    }
+                    _ => Err("the requirement's drive or response is missing".to_string()),
+                },
+            )
+        })
+        .collect()
 }
 
 /// Warns about dampers across which no undamped mode has any relative motion.

@@ -221,13 +221,71 @@ pub fn evaluate_modal(
                 }
             };
             // Strictly smaller margins win, so the first (nominal, lowest mode) is kept on ties.
-            if worst.as_ref().is_none_or(|(w, _)| point.margin < w.margin) {
+            if worst.as_ref().is_none_or(|(w, _)| worse(&point, w)) {
                 worst = Some((point, corner));
             }
         }
     }
+    finish(req, worst, "the system has only rigid-body modes")
+}
+
+/// Evaluates one driven-response requirement (`separation`, `transmissibility`, `amplitude`,
+/// `settling`, `overshoot`, `sag`) from its value at each corner (SI; or why it could not be
+/// measured there).
+pub fn evaluate_response(
+    formulas: &Formulas,
+    req: &Requirement,
+    corners: &[(Corner, Result<f64, String>)],
+) -> Verdict {
+    let roots: Vec<FormulaId> = limit_formulas(&req.limit);
+    let mut ev = Evaluator::new(formulas, &roots);
+    let mut worst: Option<(Point, &Corner)> = None;
+    for (corner, value) in corners {
+        let value = match value {
+            Ok(v) => *v,
+            Err(why) => {
+                let at = if corner.is_nominal() {
+                    "nominal values".to_string()
+                } else {
+                    corner.describe()
+                };
+                return not_evaluated(format!("could not be computed at {at}: {why}"));
+            }
+        };
+        ev.run(&corner.deviations);
+        let eval = |q: &Quantity| ev.get(q.formula);
+        let (m, l) = margin(&req.limit, value, &eval);
+        let point = Point {
+            value,
+            limit: l,
+            range: range_of(&req.limit, &eval),
+            margin: m,
+            mode: None,
+            regime: None,
+        };
+        if worst.as_ref().is_none_or(|(w, _)| worse(&point, w)) {
+            worst = Some((point, corner));
+        }
+    }
+    finish(req, worst, "nothing to evaluate")
+}
+
+/// Whether `p` is worse than the worst so far. Margins equal to rounding (a value that follows
+/// its tolerance exactly, such as a damping ratio computed from the stiffness it damps) keep
+/// the earlier point, so nominal is named rather than an arbitrary corner.
+fn worse(p: &Point, w: &Point) -> bool {
+    let scale = p
+        .value
+        .abs()
+        .max(p.limit.abs())
+        .max(w.value.abs())
+        .max(1e-300);
+    p.margin < w.margin - 1e-12 * scale
+}
+
+fn finish(req: &Requirement, worst: Option<(Point, &Corner)>, empty: &str) -> Verdict {
     let Some((point, corner)) = worst else {
-        return not_evaluated("the system has only rigid-body modes".to_string());
+        return not_evaluated(empty.to_string());
     };
     let passed = match req.limit {
         Limit::Is { .. } => point.margin > 0.0,
@@ -309,14 +367,7 @@ fn describe(req: &Requirement, p: &Point, passed: bool, corner: Option<&Corner>)
         let verdict = if passed { "as required" } else { "required" };
         return format!("regime{mode}: {found}, {want} {verdict}; {at}");
     }
-    let frequency = matches!(req.subject, Subject::Frequency { .. });
-    let show = |v: f64| {
-        if frequency {
-            format!("{} Hz", sig(v / std::f64::consts::TAU))
-        } else {
-            sig(v)
-        }
-    };
+    let show = |v: f64| show_value(req, v);
     let word = req.subject.word();
     let relation = match &req.limit {
         Limit::Compare { op, .. } => {
@@ -365,10 +416,23 @@ fn describe(req: &Requirement, p: &Point, passed: bool, corner: Option<&Corner>)
         }
         Limit::Is { .. } => String::new(),
     };
-    let margin = if frequency {
-        format!("{} Hz", sig(p.margin / std::f64::consts::TAU))
-    } else {
-        sig(p.margin)
-    };
+    let margin = show(p.margin);
     format!("{word}{mode}: {relation} (margin {margin}); {at}")
+}
+
+/// A value of the requirement's subject in the unit a reader expects: hertz for frequencies,
+/// millimetres for lengths, seconds for times, plain ratios otherwise (SI inside).
+fn show_value(req: &Requirement, v: f64) -> String {
+    let dim = match &req.limit {
+        Limit::Compare { rhs, .. } => Some(rhs.dim),
+        Limit::In { lo, .. } | Limit::Outside { lo, .. } => Some(lo.dim),
+        Limit::Is { .. } => None,
+    };
+    match (&req.subject, dim) {
+        (Subject::Frequency { .. }, _) => format!("{} Hz", sig(v / std::f64::consts::TAU)),
+        (_, Some(crate::dim::Dim::LENGTH)) => format!("{} mm", sig(v * 1000.0)),
+        (_, Some(crate::dim::Dim::TIME)) => format!("{} s", sig(v)),
+        (Subject::Amplitude { .. }, _) => format!("{} rad", sig(v)),
+        _ => sig(v),
+    }
 }
