@@ -25,8 +25,67 @@ pub enum Command {
     /// Exit status: 0 when every system was analyzed, 1 when the model has errors, 2 usage or
     /// I/O error.
     Modes(ModesArgs),
+    /// Sweep the steady-state response of one mass or inertia to a harmonic drive.
+    Response(ResponseArgs),
+    /// Simulate the response of one mass or inertia to the step and impulse drives and the
+    /// initial conditions.
+    Simulate(SimulateArgs),
     /// Print the long explanation of a diagnostic code (e.g. `sprung explain SP301`).
     Explain(ExplainArgs),
+}
+
+#[derive(Debug, clap::Args)]
+pub struct ResponseArgs {
+    /// The model file.
+    #[arg(value_name = "FILE")]
+    pub file: PathBuf,
+    /// The system (may be left out when the file has one).
+    #[arg(long, value_name = "NAME")]
+    pub system: Option<String>,
+    /// The mass or inertia whose response is swept.
+    #[arg(long, value_name = "NODE")]
+    pub at: String,
+    /// The harmonic drive (default: the first one).
+    #[arg(long, value_name = "DRIVE")]
+    pub drive: Option<String>,
+    /// Lower end of the sweep, Hz.
+    #[arg(long, value_name = "HZ", requires = "to")]
+    pub from: Option<f64>,
+    /// Upper end of the sweep, Hz.
+    #[arg(long, value_name = "HZ", requires = "from")]
+    pub to: Option<f64>,
+    /// Number of log-spaced frequencies.
+    #[arg(long, default_value_t = 400)]
+    pub points: usize,
+    /// Show transmissibility instead of amplitude.
+    #[arg(long)]
+    pub transmitted: bool,
+    #[arg(long, value_enum, default_value_t = DataFormat::Csv)]
+    pub format: DataFormat,
+}
+
+#[derive(Debug, clap::Args)]
+pub struct SimulateArgs {
+    /// The model file.
+    #[arg(value_name = "FILE")]
+    pub file: PathBuf,
+    /// The system (may be left out when the file has one).
+    #[arg(long, value_name = "NAME")]
+    pub system: Option<String>,
+    /// The mass or inertia whose motion is reported.
+    #[arg(long, value_name = "NODE")]
+    pub at: String,
+    /// Duration, seconds.
+    #[arg(long = "for", value_name = "SECONDS")]
+    pub duration: f64,
+    #[arg(long, value_enum, default_value_t = DataFormat::Csv)]
+    pub format: DataFormat,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum DataFormat {
+    Csv,
+    Json,
 }
 
 #[derive(Debug, clap::Args)]

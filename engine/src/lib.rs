@@ -19,6 +19,7 @@ pub mod requirements;
 pub mod response;
 pub mod statics;
 pub mod suggest;
+pub mod sweep;
 pub mod time_response;
 pub mod units;
 

@@ -3,6 +3,7 @@
 mod check;
 mod explain;
 mod modes;
+mod response;
 
 use std::io::{self, Write};
 use std::process::ExitCode;
@@ -34,6 +35,8 @@ pub fn run(cli: Cli) -> Status {
     let result = match cli.command {
         Command::Check(args) => check::run(&args),
         Command::Modes(args) => modes::run(&args),
+        Command::Response(args) => response::run_response(&args),
+        Command::Simulate(args) => response::run_simulate(&args),
         Command::Explain(args) => explain::run(&args),
     };
     match result {
