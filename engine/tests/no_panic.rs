@@ -3,6 +3,7 @@
 //! not asserted here.)
 
 use proptest::prelude::*;
+use sprung_engine::analysis::{Config, analyze};
 use sprung_engine::check;
 
 const MODEL: &str = r#"## Fan skid on four spring isolators.
@@ -22,6 +23,7 @@ system skid "Fan skid" {
   force unbalance on frame = 12 N at fan_speed
   force sweep on motor = 3 N at 10 Hz .. fan_speed
   torque pulse on rotor = step 30 N*m
+  force settle on frame = step 200 N
   force knock on frame = impulse 4 N*s
   motion quake of ground = 0.1 gn at 8 Hz
   initial frame = 1 mm, 0 m/s
@@ -43,6 +45,18 @@ fn the_mutation_base_model_is_clean() {
     let c = check(MODEL);
     let errors: Vec<_> = c.diagnostics.iter().filter(|d| d.is_error()).collect();
     assert!(errors.is_empty(), "{errors:#?}");
+    // Every requirement of the base model is measured, so the mutations exercise every path.
+    let a = analyze(&c, &Config::default());
+    for v in &a.systems[0].verdicts {
+        assert!(
+            !matches!(
+                v.status,
+                sprung_engine::requirements::Status::NotEvaluated(_)
+            ),
+            "{}",
+            v.message
+        );
+    }
     assert_eq!(c.model.systems[0].requirements.len(), 9);
 }
 
@@ -120,6 +134,11 @@ proptest! {
     fn mutated_models_never_panic(edits in proptest::collection::vec(edit(), 1..8)) {
         let text = apply(MODEL, &edits);
         let c = check(&text);
+        // The analysis of whatever survived must not panic either.
+        let a = analyze(&c, &Config::default());
+        for d in &a.diagnostics {
+            prop_assert!(d.span.end <= text.len() && d.span.start <= d.span.end);
+        }
         for d in &c.diagnostics {
             prop_assert!(d.span.end <= text.len() && d.span.start <= d.span.end);
             prop_assert!(text.is_char_boundary(d.span.start) && text.is_char_boundary(d.span.end));
