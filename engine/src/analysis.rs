@@ -171,6 +171,20 @@ fn analyze_system(
             ),
         ));
         all_not("too many tolerance corners")
+    } else if let Some(work) = search_work(sys).filter(|w| *w > WORK_BUDGET) {
+        diags.push(Diagnostic::new(
+            Code::TooManyCorners,
+            sys.name_span,
+            format!(
+                "searching {} corners of system `{}` ({} degrees of freedom{}) would take about {:.0e} operations, more than the analyzer's budget of {WORK_BUDGET:.0e}; its requirements are not evaluated",
+                corners::count(sys),
+                sys.name,
+                sys.dofs.len(),
+                if needs_transient(sys) { ", with transient requirements" } else { "" },
+                work
+            ),
+        ).with_help("fix some toleranced values, or merge tolerances that move together into one `let`"));
+        all_not("the tolerance search is over the work budget")
     } else {
         evaluate_requirements(model, sys, config, &mut assembler, &nominal, diags)
     };
@@ -187,6 +201,34 @@ fn analyze_system(
         modes: Some(nominal),
         verdicts,
     }
+}
+
+/// A bound on the work of a corner search, in rough floating-point operations, so that no
+/// input makes the analysis (or the language server) run for minutes: some seconds here.
+pub const WORK_BUDGET: f64 = 5e9;
+
+fn needs_transient(sys: &SystemModel) -> bool {
+    sys.requirements.iter().any(|r| {
+        matches!(
+            r.subject,
+            Subject::Settling { .. } | Subject::Overshoot { .. }
+        )
+    })
+}
+
+/// The estimated work of evaluating the system's requirements at every corner: an
+/// eigendecomposition of the 2n-square state matrix per corner (about 10 (2n)^3), and for a
+/// transient requirement a simulation of up to a few thousand steps of a 2n-square
+/// propagation.
+fn search_work(sys: &SystemModel) -> Option<f64> {
+    let n = sys.dofs.len() as f64;
+    let per_corner = 10.0 * (2.0 * n).powi(3)
+        + if needs_transient(sys) {
+            4000.0 * (2.0 * n).powi(2) * 2.0 * n
+        } else {
+            0.0
+        };
+    Some(corners::count(sys) as f64 * per_corner)
 }
 
 /// What one corner gives every requirement: the modes for the modal subjects, the measured

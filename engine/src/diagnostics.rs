@@ -282,8 +282,11 @@ catalogue! {
          converge. The requirements of the system are not evaluated.";
     TooManyCorners = "SP603", Error, "tolerance box too large to search",
         "The system depends on more than 16 toleranced values, so its tolerance box has more \
-         than 2^16 corners. Rather than guess a worst case, the analyzer evaluates none and \
-         says so. Fix some values, or merge tolerances that move together into one `let`.";
+         than 2^16 corners, or searching its corners would exceed the analyzer's work budget \
+         (many corners of a large system, or of one with settling or overshoot requirements, \
+         each needing a simulation). Rather than guess a worst case or run for minutes, the \
+         analyzer evaluates none and says so. Fix some values, or merge tolerances that move \
+         together into one `let`.";
 }
 
 #[cfg(test)]

@@ -238,3 +238,34 @@ fn a_damper_that_a_mode_stretches_raises_no_warning() {
     let (_, a) = run(felt);
     assert!(a.diagnostics.is_empty(), "{:#?}", a.diagnostics);
 }
+
+#[test]
+fn a_corner_search_over_the_work_budget_is_refused_not_run() {
+    // 40 masses and 16 toleranced values: 65,537 eigendecompositions of an 80-square state
+    // matrix would take minutes, so the analyzer says so instead.
+    let mut text = String::from("system chain {\n spring s0 between m0 and ground = 1 kN/m\n");
+    for i in 0..40 {
+        let tol = if i < 16 { " ± 1%" } else { "" };
+        text.push_str(&format!(" mass m{i} = 1 kg{tol}\n"));
+        if i > 0 {
+            text.push_str(&format!(
+                " spring s{i} between m{i} and m{} = 1 kN/m\n",
+                i - 1
+            ));
+        }
+    }
+    text.push_str(" require frequency > 0.1 Hz\n}");
+    let (_, a) = run(&text);
+    let d = a
+        .diagnostics
+        .iter()
+        .find(|d| d.code == "SP603")
+        .expect("budget diagnostic");
+    assert!(d.message.contains("65537 corners"), "{}", d.message);
+    assert!(matches!(
+        a.systems[0].verdicts[0].status,
+        Status::NotEvaluated(_)
+    ));
+    // The modes at nominal are still there.
+    assert_eq!(a.systems[0].modes.as_ref().map(|m| m.modes.len()), Some(40));
+}
