@@ -269,3 +269,26 @@ fn a_corner_search_over_the_work_budget_is_refused_not_run() {
     // The modes at nominal are still there.
     assert_eq!(a.systems[0].modes.as_ref().map(|m| m.modes.len()), Some(40));
 }
+
+#[test]
+fn a_mass_matrix_that_is_not_positive_definite_is_a_diagnostic() {
+    let text = "system s {\n mass a = 0 kg\n spring k between a and ground = 1 kN/m\n require frequency > 1 Hz\n}";
+    let c = check(text);
+    assert!(
+        c.diagnostics.iter().any(|d| d.code == "SP405"),
+        "{:#?}",
+        c.diagnostics
+    );
+    let a = analyze(&c, &Config::default());
+    let d = a
+        .diagnostics
+        .iter()
+        .find(|d| d.code == "SP602")
+        .expect("analysis failure reported");
+    assert!(d.message.contains("system `s`"), "{}", d.message);
+    assert!(a.systems[0].modes.is_none());
+    assert!(matches!(
+        a.systems[0].verdicts[0].status,
+        Status::NotEvaluated(_)
+    ));
+}
