@@ -2,6 +2,7 @@
 
 mod check;
 mod explain;
+mod lsp;
 
 use std::io::{self, Write};
 use std::process::ExitCode;
@@ -33,6 +34,7 @@ pub fn run(cli: Cli) -> Status {
     let result = match cli.command {
         Command::Check(args) => check::run(&args),
         Command::Explain(args) => explain::run(&args),
+        Command::Lsp => lsp::run(),
     };
     match result {
         Ok(status) => status,
