@@ -24,7 +24,7 @@ use crate::symbols::DefKind;
 /// Sensitivities are computed for systems up to this size (each needs one more solve).
 pub const SENSITIVITY_MAX_DOFS: usize = 200;
 /// Tolerance ranges are searched exhaustively up to this many parameters.
-const RANGE_MAX_PARAMS: usize = 12;
+const RANGE_MAX_PARAMS: usize = 8;
 
 pub fn hover(snap: &Snapshot, pos: Position) -> Option<Hover> {
     let offset = snap.offset(pos);
@@ -204,18 +204,30 @@ pub fn tolerance_range(model: &Model, id: FormulaId) -> Option<(f64, f64)> {
     Some((lo, hi))
 }
 
+/// The most rows a mode table shows; the rest are counted.
+pub const TABLE_MODES: usize = 12;
+/// Shapes list every coordinate up to this many; beyond, the largest few.
+const SHAPE_ENTRIES: usize = 6;
+
 /// The mode table of a system (Markdown).
 pub fn mode_table(sys: &SystemModel, modal: &ModalResult) -> String {
     let mut md = String::from(
         "| mode | fn | ζ | fd | Q | regime | shape |\n|---|---|---|---|---|---|---|\n",
     );
-    for m in &modal.modes {
-        let shape: Vec<String> = sys
-            .dofs
+    for m in modal.modes.iter().take(TABLE_MODES) {
+        let mut entries: Vec<(usize, f64)> = m.shape_unit.iter().copied().enumerate().collect();
+        let many = entries.len() > SHAPE_ENTRIES;
+        if many {
+            entries.sort_by(|a, b| b.1.abs().total_cmp(&a.1.abs()));
+            entries.truncate(3);
+        }
+        let mut shape: Vec<String> = entries
             .iter()
-            .zip(&m.shape_unit)
-            .map(|(d, x)| format!("{} {}", d.name, sig_figs(*x, 3)))
+            .filter_map(|(i, x)| Some(format!("{} {}", sys.dofs.get(*i)?.name, sig_figs(*x, 3))))
             .collect();
+        if many {
+            shape.push("…".to_string());
+        }
         md.push_str(&format!(
             "| {} | {} ({} rad/s) | {} | {} | {} | {} | {} |\n",
             m.index,
@@ -226,6 +238,12 @@ pub fn mode_table(sys: &SystemModel, modal: &ModalResult) -> String {
             m.quality_factor.map_or("—".into(), num),
             regime_words(m.regime),
             shape.join(", ")
+        ));
+    }
+    if modal.modes.len() > TABLE_MODES {
+        md.push_str(&format!(
+            "\n… and {} more modes (`sprung modes` lists them all)\n",
+            modal.modes.len() - TABLE_MODES
         ));
     }
     md.push_str(

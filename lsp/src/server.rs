@@ -35,6 +35,9 @@ pub struct ServerConfig {
     pub debounce: Duration,
     /// How long a request waits for the analysis of the text it is about.
     pub request_timeout: Duration,
+    /// Makes every read-only feature panic, to test that a panic becomes an internal error.
+    #[doc(hidden)]
+    pub panic_in_features: bool,
 }
 
 impl Default for ServerConfig {
@@ -42,6 +45,7 @@ impl Default for ServerConfig {
         ServerConfig {
             debounce: Duration::from_millis(15),
             request_timeout: Duration::from_secs(10),
+            panic_in_features: false,
         }
     }
 }
@@ -240,7 +244,15 @@ impl Inner {
         let Some(snap) = self.snapshot(uri).await else {
             return Ok(None);
         };
-        match tokio::task::spawn_blocking(move || f(&snap)).await {
+        let panic = self.config.panic_in_features;
+        // `spawn_blocking` catches a panic of the feature and reports it as a `JoinError`.
+        let run = move || {
+            if panic {
+                panic!("a feature panicked (panic_in_features is set)");
+            }
+            f(&snap)
+        };
+        match tokio::task::spawn_blocking(run).await {
             Ok(v) => Ok(v),
             Err(e) => {
                 let mut err = Error::internal_error();

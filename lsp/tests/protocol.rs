@@ -235,3 +235,31 @@ async fn shutdown_then_exit() {
     let _ = svc.call(exit).await;
     assert!(c.service.ready().await.is_err(), "the service has exited");
 }
+
+#[tokio::test]
+async fn a_panicking_feature_answers_an_internal_error_and_the_server_lives_on() {
+    let config = sprung_lsp::ServerConfig {
+        panic_in_features: true,
+        ..sprung_lsp::ServerConfig::default()
+    };
+    let (mut c, _) = Client::start_with(json!({}), config).await;
+    c.open(URI, RIG).await;
+    for _ in 0..3 {
+        let err = c
+            .request(
+                "textDocument/hover",
+                json!({ "textDocument": { "uri": URI }, "position": { "line": 1, "character": 7 } }),
+            )
+            .await
+            .expect_err("an internal error");
+        assert_eq!(err["code"], -32603, "{err}");
+    }
+    // Edits and diagnostics still work.
+    c.change(URI, 2, json!([edit(2, 34, 36, "90")])).await;
+    assert_eq!(
+        c.server().document_text(&URI.parse().unwrap()).unwrap(),
+        RIG.replace("40 kN/m", "90 kN/m")
+    );
+    assert_eq!(c.diagnostics(URI).await["version"], 1);
+    assert_eq!(c.request("shutdown", Value::Null).await, Ok(Value::Null));
+}

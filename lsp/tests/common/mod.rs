@@ -33,7 +33,11 @@ pub struct Client {
 impl Client {
     /// A server initialized with the given client capabilities.
     pub async fn start(capabilities: Value) -> (Client, Value) {
-        let (service, socket) = sprung_lsp::service(ServerConfig::default());
+        Client::start_with(capabilities, ServerConfig::default()).await
+    }
+
+    pub async fn start_with(capabilities: Value, config: ServerConfig) -> (Client, Value) {
+        let (service, socket) = sprung_lsp::service(config);
         let (tx, rx) = mpsc::unbounded_channel();
         tokio::spawn(async move {
             let mut socket = socket;
