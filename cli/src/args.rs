@@ -32,6 +32,8 @@ pub enum Command {
     Simulate(SimulateArgs),
     /// Print the long explanation of a diagnostic code (e.g. `sprung explain SP301`).
     Explain(ExplainArgs),
+    /// Run the language server over stdin and stdout (for editors).
+    Lsp,
 }
 
 #[derive(Debug, clap::Args)]

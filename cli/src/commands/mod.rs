@@ -2,6 +2,7 @@
 
 mod check;
 mod explain;
+mod lsp;
 mod modes;
 mod response;
 
@@ -38,6 +39,7 @@ pub fn run(cli: Cli) -> Status {
         Command::Response(args) => response::run_response(&args),
         Command::Simulate(args) => response::run_simulate(&args),
         Command::Explain(args) => explain::run(&args),
+        Command::Lsp => lsp::run(),
     };
     match result {
         Ok(status) => status,

@@ -1,0 +1,178 @@
+//! Document symbols (systems → their statements) and folding ranges (system bodies, runs of
+//! comments), plus the walk over a statement's expressions that other features share.
+
+use sprung_syntax::ast::{Drive, Expr, Item, StatementKind, Value};
+use tower_lsp_server::ls_types::{DocumentSymbol, FoldingRange, FoldingRangeKind, SymbolKind};
+
+use crate::snapshot::Snapshot;
+use crate::symbols::DefKind;
+
+pub fn value_exprs<'a>(v: &'a Value, out: &mut Vec<&'a Expr>) {
+    out.push(&v.expr);
+    if let Some(t) = &v.tolerance {
+        out.push(t);
+    }
+}
+
+/// The top-level expressions of a statement (values, drive parts, requirement limits).
+pub fn statement_exprs<'a>(st: &'a StatementKind, out: &mut Vec<&'a Expr>) {
+    use sprung_syntax::ast::{Comparison, Subject};
+    match st {
+        StatementKind::Let(l) => value_exprs(&l.value, out),
+        StatementKind::Node { value, .. }
+        | StatementKind::Element { value, .. }
+        | StatementKind::Gravity { value } => value_exprs(value, out),
+        StatementKind::Drive { drive, .. } => match drive {
+            Drive::Harmonic {
+                amplitude,
+                frequency,
+            } => {
+                value_exprs(amplitude, out);
+                value_exprs(frequency, out);
+            }
+            Drive::Band {
+                amplitude,
+                from,
+                to,
+            } => {
+                value_exprs(amplitude, out);
+                out.push(from);
+                out.push(to);
+            }
+            Drive::Step(v) | Drive::Impulse(v) => value_exprs(v, out),
+        },
+        StatementKind::Initial {
+            displacement,
+            velocity,
+            ..
+        } => {
+            value_exprs(displacement, out);
+            if let Some(v) = velocity {
+                value_exprs(v, out);
+            }
+        }
+        StatementKind::Require(r) => {
+            if let Subject::Settling {
+                within: Some(w), ..
+            } = &r.subject
+            {
+                out.push(w);
+            }
+            match &r.comparison {
+                Comparison::Compare { rhs, .. } => out.push(rhs),
+                Comparison::In { lo, hi } | Comparison::Outside { lo, hi } => {
+                    out.push(lo);
+                    out.push(hi);
+                }
+                Comparison::Is { .. } => {}
+            }
+        }
+    }
+}
+
+fn symbol_kind(k: DefKind) -> SymbolKind {
+    match k {
+        DefKind::System => SymbolKind::MODULE,
+        DefKind::Let => SymbolKind::CONSTANT,
+        DefKind::Mass | DefKind::Inertia => SymbolKind::OBJECT,
+        DefKind::Spring | DefKind::Damper => SymbolKind::FIELD,
+        DefKind::Force | DefKind::Torque | DefKind::Motion => SymbolKind::EVENT,
+    }
+}
+
+#[allow(deprecated)] // `DocumentSymbol::deprecated` must still be given.
+fn symbol(
+    snap: &Snapshot,
+    d: &crate::symbols::Def,
+    children: Option<Vec<DocumentSymbol>>,
+) -> DocumentSymbol {
+    DocumentSymbol {
+        name: d.name.clone(),
+        detail: Some(d.kind.word().to_string()),
+        kind: symbol_kind(d.kind),
+        tags: None,
+        deprecated: None,
+        range: snap.range(d.span),
+        selection_range: snap.range(d.name_span),
+        children,
+    }
+}
+
+pub fn document_symbols(snap: &Snapshot) -> Vec<DocumentSymbol> {
+    let ix = &snap.symbols;
+    let mut out = Vec::new();
+    let mut system = 0usize;
+    for d in &ix.defs {
+        match (d.kind, d.system) {
+            (DefKind::System, _) => {
+                let children: Vec<DocumentSymbol> = ix
+                    .defs
+                    .iter()
+                    .filter(|c| c.system == Some(system))
+                    .map(|c| symbol(snap, c, None))
+                    .collect();
+                out.push(symbol(snap, d, Some(children)));
+                system += 1;
+            }
+            (_, None) => out.push(symbol(snap, d, None)),
+            _ => {}
+        }
+    }
+    out.sort_by_key(|s| (s.range.start.line, s.range.start.character));
+    out
+}
+
+pub fn folding_ranges(snap: &Snapshot) -> Vec<FoldingRange> {
+    let mut out = Vec::new();
+    for item in &snap.checked.parse.file.items {
+        if let Item::System(s) = item {
+            let body = s.body_span.unwrap_or(s.span);
+            let (a, b) = (snap.position(body.start), snap.position(body.end));
+            if b.line > a.line {
+                out.push(FoldingRange {
+                    start_line: a.line,
+                    start_character: None,
+                    end_line: b.line.saturating_sub(1).max(a.line),
+                    end_character: None,
+                    kind: Some(FoldingRangeKind::Region),
+                    collapsed_text: None,
+                });
+            }
+        }
+    }
+    // Runs of comment lines (two or more).
+    let mut run: Option<(u32, u32)> = None;
+    let flush = |run: &mut Option<(u32, u32)>, out: &mut Vec<FoldingRange>| {
+        if let Some((a, b)) = run.take()
+            && b > a
+        {
+            out.push(FoldingRange {
+                start_line: a,
+                start_character: None,
+                end_line: b,
+                end_character: None,
+                kind: Some(FoldingRangeKind::Comment),
+                collapsed_text: None,
+            });
+        }
+    };
+    for c in &snap.checked.parse.file.comments {
+        let line = snap.position(c.span.start).line;
+        let own_line = snap.text[..c.span.start.min(snap.text.len())]
+            .rsplit('\n')
+            .next()
+            .is_some_and(|before| before.trim().is_empty());
+        match run {
+            Some((a, b)) if own_line && line == b + 1 => run = Some((a, line)),
+            _ => {
+                flush(&mut run, &mut out);
+                if own_line {
+                    run = Some((line, line));
+                }
+            }
+        }
+    }
+    flush(&mut run, &mut out);
+    out.sort_by_key(|f| f.start_line);
+    out
+}

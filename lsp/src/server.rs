@@ -1,0 +1,576 @@
+//! The protocol side: the document store, change handling, analysis scheduling and dispatch to
+//! the feature modules.
+//!
+//! Ordering: the transport runs several handlers at once, so a handler that awaits lets later
+//! messages overtake it. Every `didOpen`/`didChange`/`didClose` is therefore applied to the
+//! store synchronously, in the handler's first poll, before any `.await`; the store's lock is a
+//! `std::sync::Mutex` that is never held across an `.await`.
+//!
+//! Analysis: each change bumps the document's generation and spawns a task that (after a short
+//! debounce for edits, none for the first open) checks the generation is still current, then
+//! analyzes a copy of the text in `spawn_blocking`. A finished snapshot is kept only if no newer
+//! change arrived meanwhile; requests wait (bounded) for a snapshot at least as new as the text
+//! they were asked about, so they never answer from a stale text.
+
+use std::collections::HashMap;
+use std::sync::atomic::{AtomicU64, Ordering};
+use std::sync::{Arc, Mutex, MutexGuard};
+use std::time::Duration;
+
+use sprung_syntax::Encoding;
+use tokio::sync::watch;
+use tower_lsp_server::jsonrpc::{Error, Result};
+use tower_lsp_server::ls_types::*;
+use tower_lsp_server::{Client, LanguageServer};
+
+use crate::document::Document;
+use crate::snapshot::Snapshot;
+use crate::{completion, diagnostics, hints, hover, navigation, outline, semantic};
+
+/// Settings of the server.
+#[derive(Clone, Debug)]
+pub struct ServerConfig {
+    /// How long an edit waits for the next one before its analysis starts. The first open is
+    /// never delayed.
+    pub debounce: Duration,
+    /// How long a request waits for the analysis of the text it is about.
+    pub request_timeout: Duration,
+    /// Makes every read-only feature panic, to test that a panic becomes an internal error.
+    #[doc(hidden)]
+    pub panic_in_features: bool,
+}
+
+impl Default for ServerConfig {
+    fn default() -> Self {
+        ServerConfig {
+            debounce: Duration::from_millis(15),
+            request_timeout: Duration::from_secs(10),
+            panic_in_features: false,
+        }
+    }
+}
+
+/// The language server. Cheap to clone; every clone shares one state.
+#[derive(Clone, Debug)]
+pub struct Server {
+    inner: Arc<Inner>,
+}
+
+#[derive(Debug)]
+struct Inner {
+    client: Client,
+    config: ServerConfig,
+    store: Mutex<Store>,
+    encoding: Mutex<Encoding>,
+    generation: AtomicU64,
+    /// Serializes publishing, so an older result can never be sent after a newer one.
+    publish: tokio::sync::Mutex<()>,
+}
+
+#[derive(Debug, Default)]
+struct Store {
+    docs: HashMap<String, DocState>,
+}
+
+#[derive(Debug)]
+struct DocState {
+    uri: Uri,
+    doc: Document,
+    generation: u64,
+    latest: watch::Sender<Option<Arc<Snapshot>>>,
+    /// The diagnostics last published for this document.
+    published: Option<Vec<Diagnostic>>,
+}
+
+fn key(uri: &Uri) -> String {
+    uri.as_str().to_string()
+}
+
+impl Server {
+    pub fn new(client: Client) -> Self {
+        Server::with_config(client, ServerConfig::default())
+    }
+
+    pub fn with_config(client: Client, config: ServerConfig) -> Self {
+        Server {
+            inner: Arc::new(Inner {
+                client,
+                config,
+                store: Mutex::new(Store::default()),
+                encoding: Mutex::new(Encoding::Utf16),
+                generation: AtomicU64::new(0),
+                publish: tokio::sync::Mutex::new(()),
+            }),
+        }
+    }
+
+    /// The text the server holds for a document, if it holds one (for tests).
+    pub fn document_text(&self, uri: &Uri) -> Option<String> {
+        self.inner
+            .store()
+            .docs
+            .get(&key(uri))
+            .map(|d| d.doc.text.clone())
+    }
+
+    /// The negotiated position encoding.
+    pub fn encoding(&self) -> Encoding {
+        self.inner.encoding()
+    }
+
+    /// Waits for the analysis of the document's current text (for tests and benchmarks).
+    pub async fn analyzed(&self, uri: &Uri) -> Option<Arc<Snapshot>> {
+        self.inner.snapshot(uri).await
+    }
+}
+
+impl Inner {
+    fn store(&self) -> MutexGuard<'_, Store> {
+        // A panic while holding the lock cannot leave the map half-updated (every update is
+        // one insert or remove), so a poisoned lock is still usable.
+        self.store.lock().unwrap_or_else(|p| p.into_inner())
+    }
+
+    fn encoding(&self) -> Encoding {
+        *self.encoding.lock().unwrap_or_else(|p| p.into_inner())
+    }
+
+    fn next_generation(&self) -> u64 {
+        self.generation.fetch_add(1, Ordering::Relaxed) + 1
+    }
+
+    fn is_current(&self, key: &str, generation: u64) -> bool {
+        self.store()
+            .docs
+            .get(key)
+            .is_some_and(|d| d.generation == generation)
+    }
+
+    /// Starts the analysis of one generation of a document.
+    fn schedule(
+        self: &Arc<Self>,
+        key: String,
+        generation: u64,
+        text: String,
+        version: i32,
+        delay: Duration,
+    ) {
+        let inner = Arc::clone(self);
+        let encoding = self.encoding();
+        tokio::spawn(async move {
+            if !delay.is_zero() {
+                tokio::time::sleep(delay).await;
+            }
+            if !inner.is_current(&key, generation) {
+                return; // superseded by a newer edit
+            }
+            let computed = tokio::task::spawn_blocking(move || {
+                Snapshot::compute(text, version, generation, encoding)
+            })
+            .await;
+            let snap = match computed {
+                Ok(s) => Arc::new(s),
+                Err(e) => {
+                    let msg = format!("sprung: the analysis of {key} failed: {e}");
+                    inner.client.log_message(MessageType::ERROR, msg).await;
+                    return;
+                }
+            };
+            inner.finish(&key, snap).await;
+        });
+    }
+
+    /// Keeps a finished snapshot if it is still current, and publishes its diagnostics when
+    /// they changed.
+    async fn finish(&self, key: &str, snap: Arc<Snapshot>) {
+        let _serial = self.publish.lock().await;
+        let publish = {
+            let mut store = self.store();
+            let Some(state) = store.docs.get_mut(key) else {
+                return;
+            };
+            if state.generation != snap.generation {
+                return; // a newer edit arrived while this one was analyzed
+            }
+            state.latest.send_replace(Some(Arc::clone(&snap)));
+            let diags = diagnostics::to_lsp(&snap, &state.uri);
+            if state.published.as_ref() == Some(&diags) {
+                None
+            } else {
+                state.published = Some(diags.clone());
+                Some((state.uri.clone(), diags, snap.version))
+            }
+        };
+        if let Some((uri, diags, version)) = publish {
+            self.client
+                .publish_diagnostics(uri, diags, Some(version))
+                .await;
+        }
+    }
+
+    /// The newest snapshot at least as new as the document's current text; `None` for an
+    /// unknown or closed document, or when the analysis does not finish in time.
+    async fn snapshot(&self, uri: &Uri) -> Option<Arc<Snapshot>> {
+        let (generation, mut rx) = {
+            let store = self.store();
+            let state = store.docs.get(&key(uri))?;
+            (state.generation, state.latest.subscribe())
+        };
+        let wait = rx.wait_for(|s| s.as_ref().is_some_and(|s| s.generation >= generation));
+        match tokio::time::timeout(self.config.request_timeout, wait).await {
+            Ok(Ok(s)) => s.clone(),
+            _ => None,
+        }
+    }
+
+    /// Drops a document whose edit could not be applied, clears its diagnostics and logs why.
+    async fn drop_document(&self, uri: Uri, why: String) {
+        let _serial = self.publish.lock().await;
+        let msg = format!(
+            "sprung: dropped {} ({why}); reopen the document or send its whole text",
+            uri.as_str()
+        );
+        self.client.log_message(MessageType::WARNING, msg).await;
+        self.client.publish_diagnostics(uri, Vec::new(), None).await;
+    }
+
+    /// Runs a read-only feature on the document's snapshot off the runtime. A panic in the
+    /// feature becomes an internal error; an unknown document an empty answer.
+    async fn read<T, F>(&self, uri: &Uri, f: F) -> Result<Option<T>>
+    where
+        T: Send + 'static,
+        F: FnOnce(&Snapshot) -> Option<T> + Send + 'static,
+    {
+        let Some(snap) = self.snapshot(uri).await else {
+            return Ok(None);
+        };
+        let panic = self.config.panic_in_features;
+        // `spawn_blocking` catches a panic of the feature and reports it as a `JoinError`.
+        let run = move || {
+            if panic {
+                panic!("a feature panicked (panic_in_features is set)");
+            }
+            f(&snap)
+        };
+        match tokio::task::spawn_blocking(run).await {
+            Ok(v) => Ok(v),
+            Err(e) => {
+                let mut err = Error::internal_error();
+                err.message = format!("sprung: internal error: {e}").into();
+                Err(err)
+            }
+        }
+    }
+}
+
+fn negotiate_encoding(caps: &ClientCapabilities) -> Encoding {
+    let offers_utf8 = caps
+        .general
+        .as_ref()
+        .and_then(|g| g.position_encodings.as_ref())
+        .is_some_and(|encs| encs.contains(&PositionEncodingKind::UTF8));
+    if offers_utf8 {
+        Encoding::Utf8
+    } else {
+        Encoding::Utf16
+    }
+}
+
+impl LanguageServer for Server {
+    async fn initialize(&self, params: InitializeParams) -> Result<InitializeResult> {
+        let enc = negotiate_encoding(&params.capabilities);
+        *self
+            .inner
+            .encoding
+            .lock()
+            .unwrap_or_else(|p| p.into_inner()) = enc;
+        let position_encoding = match enc {
+            Encoding::Utf8 => PositionEncodingKind::UTF8,
+            _ => PositionEncodingKind::UTF16,
+        };
+        Ok(InitializeResult {
+            server_info: Some(ServerInfo {
+                name: "sprung".to_string(),
+                version: Some(env!("CARGO_PKG_VERSION").to_string()),
+            }),
+            capabilities: ServerCapabilities {
+                position_encoding: Some(position_encoding),
+                text_document_sync: Some(TextDocumentSyncCapability::Options(
+                    TextDocumentSyncOptions {
+                        open_close: Some(true),
+                        change: Some(TextDocumentSyncKind::INCREMENTAL),
+                        ..TextDocumentSyncOptions::default()
+                    },
+                )),
+                hover_provider: Some(HoverProviderCapability::Simple(true)),
+                inlay_hint_provider: Some(OneOf::Left(true)),
+                completion_provider: Some(CompletionOptions {
+                    trigger_characters: Some(
+                        [" ", "*", "/", "(", "^"]
+                            .iter()
+                            .map(|s| s.to_string())
+                            .collect(),
+                    ),
+                    ..CompletionOptions::default()
+                }),
+                definition_provider: Some(OneOf::Left(true)),
+                references_provider: Some(OneOf::Left(true)),
+                document_highlight_provider: Some(OneOf::Left(true)),
+                rename_provider: Some(OneOf::Right(RenameOptions {
+                    prepare_provider: Some(true),
+                    work_done_progress_options: WorkDoneProgressOptions::default(),
+                })),
+                document_symbol_provider: Some(OneOf::Left(true)),
+                folding_range_provider: Some(FoldingRangeProviderCapability::Simple(true)),
+                semantic_tokens_provider: Some(
+                    SemanticTokensServerCapabilities::SemanticTokensOptions(
+                        SemanticTokensOptions {
+                            legend: semantic::legend(),
+                            full: Some(SemanticTokensFullOptions::Bool(true)),
+                            range: None,
+                            work_done_progress_options: WorkDoneProgressOptions::default(),
+                        },
+                    ),
+                ),
+                ..ServerCapabilities::default()
+            },
+            offset_encoding: None,
+        })
+    }
+
+    async fn shutdown(&self) -> Result<()> {
+        Ok(())
+    }
+
+    async fn did_open(&self, params: DidOpenTextDocumentParams) {
+        let td = params.text_document;
+        let k = key(&td.uri);
+        let generation = self.inner.next_generation();
+        let text = td.text.clone();
+        {
+            let mut store = self.inner.store();
+            let (latest, _) = watch::channel(None);
+            store.docs.insert(
+                k.clone(),
+                DocState {
+                    uri: td.uri,
+                    doc: Document::new(td.text, td.version),
+                    generation,
+                    latest,
+                    published: None,
+                },
+            );
+        }
+        self.inner
+            .schedule(k, generation, text, td.version, Duration::ZERO);
+    }
+
+    async fn did_change(&self, params: DidChangeTextDocumentParams) {
+        let uri = params.text_document.uri;
+        let version = params.text_document.version;
+        let k = key(&uri);
+        let enc = self.inner.encoding();
+        // Applied synchronously, before any `.await`.
+        let outcome: std::result::Result<(u64, String), String> = {
+            let mut store = self.inner.store();
+            let generation = self.inner.next_generation();
+            match store.docs.get_mut(&k) {
+                Some(state) => match state.doc.apply(version, params.content_changes, enc) {
+                    Ok(()) => {
+                        state.generation = generation;
+                        Ok((generation, state.doc.text.clone()))
+                    }
+                    Err(e) => {
+                        store.docs.remove(&k);
+                        Err(e.to_string())
+                    }
+                },
+                None => {
+                    // A document dropped after a bad edit comes back with a whole text.
+                    match params
+                        .content_changes
+                        .iter()
+                        .rposition(|c| c.range.is_none())
+                    {
+                        Some(i) => {
+                            let mut changes = params.content_changes;
+                            let rest = changes.split_off(i + 1);
+                            let full = changes.pop().map(|c| c.text).unwrap_or_default();
+                            let mut doc = Document::new(full, i32::MIN);
+                            match doc.apply(version, rest, enc) {
+                                Ok(()) => {
+                                    let text = doc.text.clone();
+                                    let (latest, _) = watch::channel(None);
+                                    store.docs.insert(
+                                        k.clone(),
+                                        DocState {
+                                            uri: uri.clone(),
+                                            doc,
+                                            generation,
+                                            latest,
+                                            published: None,
+                                        },
+                                    );
+                                    Ok((generation, text))
+                                }
+                                Err(e) => Err(e.to_string()),
+                            }
+                        }
+                        None => Err("a change to a document that is not open".to_string()),
+                    }
+                }
+            }
+        };
+        match outcome {
+            Ok((generation, text)) => {
+                self.inner
+                    .schedule(k, generation, text, version, self.inner.config.debounce);
+            }
+            Err(why) => self.inner.drop_document(uri, why).await,
+        }
+    }
+
+    async fn did_close(&self, params: DidCloseTextDocumentParams) {
+        let uri = params.text_document.uri;
+        let removed = self.inner.store().docs.remove(&key(&uri)).is_some();
+        if removed {
+            let _serial = self.inner.publish.lock().await;
+            self.inner
+                .client
+                .publish_diagnostics(uri, Vec::new(), None)
+                .await;
+        }
+    }
+
+    async fn hover(&self, params: HoverParams) -> Result<Option<Hover>> {
+        let p = params.text_document_position_params;
+        self.inner
+            .read(&p.text_document.uri, move |s| hover::hover(s, p.position))
+            .await
+    }
+
+    async fn inlay_hint(&self, params: InlayHintParams) -> Result<Option<Vec<InlayHint>>> {
+        let range = params.range;
+        self.inner
+            .read(&params.text_document.uri, move |s| {
+                Some(hints::inlay_hints(s, range))
+            })
+            .await
+    }
+
+    async fn completion(&self, params: CompletionParams) -> Result<Option<CompletionResponse>> {
+        let p = params.text_document_position;
+        self.inner
+            .read(&p.text_document.uri, move |s| {
+                Some(CompletionResponse::Array(completion::complete(
+                    s, p.position,
+                )))
+            })
+            .await
+    }
+
+    async fn goto_definition(
+        &self,
+        params: GotoDefinitionParams,
+    ) -> Result<Option<GotoDefinitionResponse>> {
+        let p = params.text_document_position_params;
+        let uri = p.text_document.uri.clone();
+        self.inner
+            .read(&p.text_document.uri, move |s| {
+                navigation::definition(s, p.position)
+                    .map(|r| GotoDefinitionResponse::Scalar(Location::new(uri, r)))
+            })
+            .await
+    }
+
+    async fn references(&self, params: ReferenceParams) -> Result<Option<Vec<Location>>> {
+        let p = params.text_document_position;
+        let include = params.context.include_declaration;
+        let uri = p.text_document.uri.clone();
+        self.inner
+            .read(&p.text_document.uri, move |s| {
+                let ranges = navigation::references(s, p.position, include)?;
+                Some(
+                    ranges
+                        .into_iter()
+                        .map(|r| Location::new(uri.clone(), r))
+                        .collect(),
+                )
+            })
+            .await
+    }
+
+    async fn document_highlight(
+        &self,
+        params: DocumentHighlightParams,
+    ) -> Result<Option<Vec<DocumentHighlight>>> {
+        let p = params.text_document_position_params;
+        self.inner
+            .read(&p.text_document.uri, move |s| {
+                navigation::highlights(s, p.position)
+            })
+            .await
+    }
+
+    async fn prepare_rename(
+        &self,
+        params: TextDocumentPositionParams,
+    ) -> Result<Option<PrepareRenameResponse>> {
+        let pos = params.position;
+        self.inner
+            .read(&params.text_document.uri, move |s| {
+                navigation::prepare_rename(s, pos)
+            })
+            .await
+    }
+
+    async fn rename(&self, params: RenameParams) -> Result<Option<WorkspaceEdit>> {
+        let p = params.text_document_position;
+        let uri = p.text_document.uri.clone();
+        let new_name = params.new_name;
+        let answer = self
+            .inner
+            .read(&p.text_document.uri, move |s| {
+                Some(navigation::rename(s, p.position, &new_name))
+            })
+            .await?;
+        match answer {
+            None | Some(Ok(None)) => Ok(None),
+            Some(Ok(Some(edits))) => Ok(Some(WorkspaceEdit {
+                changes: Some(HashMap::from([(uri, edits)])),
+                ..WorkspaceEdit::default()
+            })),
+            Some(Err(why)) => Err(Error::invalid_params(why)),
+        }
+    }
+
+    async fn document_symbol(
+        &self,
+        params: DocumentSymbolParams,
+    ) -> Result<Option<DocumentSymbolResponse>> {
+        self.inner
+            .read(&params.text_document.uri, |s| {
+                Some(DocumentSymbolResponse::Nested(outline::document_symbols(s)))
+            })
+            .await
+    }
+
+    async fn folding_range(&self, params: FoldingRangeParams) -> Result<Option<Vec<FoldingRange>>> {
+        self.inner
+            .read(&params.text_document.uri, |s| {
+                Some(outline::folding_ranges(s))
+            })
+            .await
+    }
+
+    async fn semantic_tokens_full(
+        &self,
+        params: SemanticTokensParams,
+    ) -> Result<Option<SemanticTokensResult>> {
+        self.inner
+            .read(&params.text_document.uri, |s| {
+                Some(SemanticTokensResult::Tokens(semantic::tokens(s)))
+            })
+            .await
+    }
+}
