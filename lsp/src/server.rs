@@ -43,7 +43,7 @@ pub struct ServerConfig {
 impl Default for ServerConfig {
     fn default() -> Self {
         ServerConfig {
-            debounce: Duration::from_millis(15),
+            debounce: Duration::from_millis(3),
             request_timeout: Duration::from_secs(10),
             panic_in_features: false,
         }
@@ -322,6 +322,8 @@ impl LanguageServer for Server {
                 })),
                 document_symbol_provider: Some(OneOf::Left(true)),
                 folding_range_provider: Some(FoldingRangeProviderCapability::Simple(true)),
+                selection_range_provider: Some(SelectionRangeProviderCapability::Simple(true)),
+                workspace_symbol_provider: Some(OneOf::Left(true)),
                 semantic_tokens_provider: Some(
                     SemanticTokensServerCapabilities::SemanticTokensOptions(
                         SemanticTokensOptions {
@@ -561,6 +563,48 @@ impl LanguageServer for Server {
                 Some(outline::folding_ranges(s))
             })
             .await
+    }
+
+    async fn selection_range(
+        &self,
+        params: SelectionRangeParams,
+    ) -> Result<Option<Vec<SelectionRange>>> {
+        let positions = params.positions;
+        self.inner
+            .read(&params.text_document.uri, move |s| {
+                Some(
+                    positions
+                        .iter()
+                        .map(|p| outline::selection_range(s, *p))
+                        .collect(),
+                )
+            })
+            .await
+    }
+
+    async fn symbol(
+        &self,
+        params: WorkspaceSymbolParams,
+    ) -> Result<Option<WorkspaceSymbolResponse>> {
+        // The newest finished snapshot of every open document, without waiting.
+        let snaps: Vec<(Uri, Arc<Snapshot>)> = self
+            .inner
+            .store()
+            .docs
+            .values()
+            .filter_map(|d| Some((d.uri.clone(), d.latest.borrow().clone()?)))
+            .collect();
+        let query = params.query;
+        let run = move || {
+            snaps
+                .iter()
+                .flat_map(|(uri, s)| outline::workspace_symbols(s, uri, &query))
+                .collect::<Vec<_>>()
+        };
+        match tokio::task::spawn_blocking(run).await {
+            Ok(v) => Ok(Some(WorkspaceSymbolResponse::Flat(v))),
+            Err(_) => Err(Error::internal_error()),
+        }
     }
 
     async fn semantic_tokens_full(

@@ -396,3 +396,65 @@ fn decode_tokens(text: &str, data: &[u64]) -> String {
     }
     out
 }
+
+#[tokio::test]
+async fn selection_ranges_grow_outwards() {
+    let mut c = pad().await;
+    // On `k` inside `sqrt(k * m)` on line 5.
+    let sel = c
+        .request(
+            "textDocument/selectionRange",
+            json!({ "textDocument": { "uri": URI }, "positions": [ { "line": 5, "character": 49 } ] }),
+        )
+        .await
+        .unwrap();
+    let mut out = Vec::new();
+    let mut at = &sel[0];
+    while at.is_object() {
+        out.push(range(&at["range"]));
+        at = &at["parent"];
+    }
+    assert_eq!(
+        out,
+        [
+            "5:49-5:50", // k
+            "5:49-5:54", // k * m
+            "5:44-5:55", // sqrt(k * m)
+            "5:34-5:55", // the whole value
+            "5:2-5:55",  // the statement
+            "1:29-8:1",  // the body
+            "1:0-8:1",   // the system
+            "0:0-9:0",   // the file
+        ]
+    );
+}
+
+#[tokio::test]
+async fn workspace_symbols_over_open_files() {
+    let mut c = pad().await;
+    c.open(
+        "file:///work/other.sprung",
+        "let k_base = 3 kN/m\nsystem other {\n  mass kk = 1 kg\n}\n",
+    )
+    .await;
+    c.hints("file:///work/other.sprung").await; // both analyzed
+    c.hints(URI).await;
+    let syms = c
+        .request("workspace/symbol", json!({ "query": "K" }))
+        .await
+        .unwrap();
+    let mut names: Vec<String> = syms
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|s| {
+            format!(
+                "{} in {}",
+                s["name"].as_str().unwrap(),
+                s["containerName"].as_str().unwrap_or("-")
+            )
+        })
+        .collect();
+    names.sort();
+    assert_eq!(names, ["k in pad", "k_base in -", "kk in other"]);
+}
