@@ -458,3 +458,19 @@ async fn workspace_symbols_over_open_files() {
     names.sort();
     assert_eq!(names, ["k in pad", "k_base in -", "kk in other"]);
 }
+
+#[tokio::test]
+async fn hover_shows_doc_comments_where_no_value_is_known() {
+    let mut c = Client::utf16().await;
+    let text = "## Top speed of the drum.\nlet top = 3200 rpm\nsystem s {\n  ## The drum.\n  mass drum = 3 N\n}\n";
+    c.open(URI, text).await;
+    // A top-level let: the engine keeps no value for it, the doc still shows.
+    let md = markdown(&c.at("textDocument/hover", URI, (1, 5)).await);
+    assert!(md.contains("Top speed of the drum."), "{md}");
+    // A mass with a unit error: no value, but its doc and statement.
+    let md = markdown(&c.at("textDocument/hover", URI, (4, 8)).await);
+    assert!(
+        md.contains("The drum.") && md.contains("mass drum = 3 N"),
+        "{md}"
+    );
+}
