@@ -25,7 +25,7 @@ use tower_lsp_server::{Client, LanguageServer};
 
 use crate::document::Document;
 use crate::snapshot::Snapshot;
-use crate::{completion, diagnostics, hints, hover, navigation, outline, semantic};
+use crate::{completion, diagnostics, hints, hover, lens, navigation, outline, semantic};
 
 /// Settings of the server.
 #[derive(Clone, Debug)]
@@ -321,6 +321,9 @@ impl LanguageServer for Server {
                     work_done_progress_options: WorkDoneProgressOptions::default(),
                 })),
                 document_symbol_provider: Some(OneOf::Left(true)),
+                code_lens_provider: Some(CodeLensOptions {
+                    resolve_provider: Some(false),
+                }),
                 folding_range_provider: Some(FoldingRangeProviderCapability::Simple(true)),
                 selection_range_provider: Some(SelectionRangeProviderCapability::Simple(true)),
                 workspace_symbol_provider: Some(OneOf::Left(true)),
@@ -605,6 +608,12 @@ impl LanguageServer for Server {
             Ok(v) => Ok(Some(WorkspaceSymbolResponse::Flat(v))),
             Err(_) => Err(Error::internal_error()),
         }
+    }
+
+    async fn code_lens(&self, params: CodeLensParams) -> Result<Option<Vec<CodeLens>>> {
+        self.inner
+            .read(&params.text_document.uri, |s| Some(lens::code_lenses(s)))
+            .await
     }
 
     async fn semantic_tokens_full(

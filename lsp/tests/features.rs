@@ -474,3 +474,13 @@ async fn hover_shows_doc_comments_where_no_value_is_known() {
         "{md}"
     );
 }
+
+#[tokio::test]
+async fn code_lens_over_each_system() {
+    let mut c = pad().await;
+    let lenses = c.whole("textDocument/codeLens", URI).await;
+    let l = &lenses[0];
+    assert_eq!(range(&l["range"]), "1:7-1:10");
+    // One mode at 10.07 Hz (hand computation at the top of this file).
+    assert_eq!(l["command"]["title"], "1 mode · lowest 10.1 Hz");
+}
