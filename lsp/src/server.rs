@@ -25,7 +25,7 @@ use tower_lsp_server::{Client, LanguageServer};
 
 use crate::document::Document;
 use crate::snapshot::Snapshot;
-use crate::{completion, diagnostics, hints, hover, lens, navigation, outline, semantic};
+use crate::{actions, completion, diagnostics, hints, hover, lens, navigation, outline, semantic};
 
 /// Settings of the server.
 #[derive(Clone, Debug)]
@@ -321,6 +321,7 @@ impl LanguageServer for Server {
                     work_done_progress_options: WorkDoneProgressOptions::default(),
                 })),
                 document_symbol_provider: Some(OneOf::Left(true)),
+                code_action_provider: Some(CodeActionProviderCapability::Simple(true)),
                 code_lens_provider: Some(CodeLensOptions {
                     resolve_provider: Some(false),
                 }),
@@ -608,6 +609,16 @@ impl LanguageServer for Server {
             Ok(v) => Ok(Some(WorkspaceSymbolResponse::Flat(v))),
             Err(_) => Err(Error::internal_error()),
         }
+    }
+
+    async fn code_action(&self, params: CodeActionParams) -> Result<Option<CodeActionResponse>> {
+        let uri = params.text_document.uri.clone();
+        let range = params.range;
+        self.inner
+            .read(&params.text_document.uri, move |s| {
+                Some(actions::code_actions(s, &uri, range))
+            })
+            .await
     }
 
     async fn code_lens(&self, params: CodeLensParams) -> Result<Option<Vec<CodeLens>>> {

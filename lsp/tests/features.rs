@@ -484,3 +484,60 @@ async fn code_lens_over_each_system() {
     // One mode at 10.07 Hz (hand computation at the top of this file).
     assert_eq!(l["command"]["title"], "1 mode · lowest 10.1 Hz");
 }
+
+async fn actions(c: &mut Client, line: u32) -> Vec<(String, String)> {
+    let a = c
+        .request(
+            "textDocument/codeAction",
+            json!({ "textDocument": { "uri": URI }, "range": {
+                "start": { "line": line, "character": 0 }, "end": { "line": line, "character": 200 } },
+                "context": { "diagnostics": [] } }),
+        )
+        .await
+        .unwrap();
+    a.as_array()
+        .unwrap()
+        .iter()
+        .map(|x| {
+            let e = &x["edit"]["changes"][URI][0];
+            (
+                x["title"].as_str().unwrap().to_string(),
+                format!("{} {}", range(&e["range"]), e["newText"].as_str().unwrap()),
+            )
+        })
+        .collect()
+}
+
+#[tokio::test]
+async fn quick_fixes_for_pounds_units_and_names() {
+    let mut c = Client::utf16().await;
+    let text = "system s {\n  mass m = 20 lb\n  spring k between m and ground = 40 kn/m\n  damper d between m and ground = 0.1 * sqrt(k * mm)\n}\n";
+    c.open(URI, text).await;
+    assert_eq!(
+        actions(&mut c, 1).await,
+        [
+            (
+                "Replace `lb` with `lbm`".to_string(),
+                "1:14-1:16 lbm".to_string()
+            ),
+            (
+                "Replace `lb` with `lbf`".to_string(),
+                "1:14-1:16 lbf".to_string()
+            ),
+        ]
+    );
+    assert_eq!(
+        actions(&mut c, 2).await,
+        [(
+            "Replace `kn` with `kN`".to_string(),
+            "2:37-2:39 kN".to_string()
+        )]
+    );
+    assert_eq!(
+        actions(&mut c, 3).await,
+        [(
+            "Replace `mm` with `m`".to_string(),
+            "3:49-3:51 m".to_string()
+        )]
+    );
+}
