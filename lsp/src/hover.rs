@@ -301,96 +301,101 @@ fn def_markdown(snap: &Snapshot, def: usize) -> Option<String> {
     }
     let sys = view.as_ref().and_then(|v| v.model);
     let analysis = view.as_ref().and_then(|v| v.analysis);
-    match d.kind {
-        DefKind::System => {
-            if let (Some(sys), Some(modal)) = (sys, analysis.and_then(|a| a.modes.as_ref())) {
-                md.push('\n');
-                md.push_str(&mode_table(sys, modal));
-            } else if sys.is_some_and(|s| s.has_errors) {
-                md.push_str("\nnot analyzed: the system has errors");
+    // Values are added when the checker produced them; the header and doc always show.
+    let mut details = || -> Option<()> {
+        match d.kind {
+            DefKind::System => {
+                if let (Some(sys), Some(modal)) = (sys, analysis.and_then(|a| a.modes.as_ref())) {
+                    md.push('\n');
+                    md.push_str(&mode_table(sys, modal));
+                } else if sys.is_some_and(|s| s.has_errors) {
+                    md.push_str("\nnot analyzed: the system has errors");
+                }
             }
-        }
-        DefKind::Let => {
-            let lv = sys.and_then(|s| s.lets.iter().find(|l| l.name_span == d.name_span))?;
-            value_lines(
-                &mut md,
-                model,
-                lv.value.formula,
-                lv.value.nominal,
-                lv.value.dim,
-                false,
-            );
-        }
-        DefKind::Mass | DefKind::Inertia => {
-            let sys = sys?;
-            let i = sys.dofs.iter().position(|x| x.name_span == d.name_span)?;
-            let q = sys.dofs[i].value;
-            value_lines(&mut md, model, q.formula, q.nominal, q.dim, false);
-            if let Some(modal) = analysis.and_then(|a| a.modes.as_ref()) {
-                let shares: Vec<f64> = modal
-                    .modes
-                    .iter()
-                    .map(|m| q.nominal * m.shape.get(i).copied().unwrap_or(0.0).powi(2))
-                    .collect();
-                influence(&mut md, model, sys, modal, &shares, "kinetic energy", |m| {
-                    scaled_dof(m, sys, i)
-                });
+            DefKind::Let => {
+                let lv = sys.and_then(|s| s.lets.iter().find(|l| l.name_span == d.name_span))?;
+                value_lines(
+                    &mut md,
+                    model,
+                    lv.value.formula,
+                    lv.value.nominal,
+                    lv.value.dim,
+                    false,
+                );
             }
-        }
-        DefKind::Spring | DefKind::Damper => {
-            let sys = sys?;
-            let i = sys
-                .elements
-                .iter()
-                .position(|x| x.name_span == d.name_span)?;
-            let el = &sys.elements[i];
-            value_lines(
-                &mut md,
-                model,
-                el.value.formula,
-                el.value.nominal,
-                el.value.dim,
-                el.rotational,
-            );
-            if let Some(modal) = analysis.and_then(|a| a.modes.as_ref()) {
-                let rel = |m: &modes::Mode, a: End, b: End| {
-                    let at = |e: End| match e {
-                        End::Ground => 0.0,
-                        End::Dof(k) => m.shape.get(k).copied().unwrap_or(0.0),
-                    };
-                    at(a) - at(b)
-                };
-                let shares: Vec<f64> = modal
-                    .modes
+            DefKind::Mass | DefKind::Inertia => {
+                let sys = sys?;
+                let i = sys.dofs.iter().position(|x| x.name_span == d.name_span)?;
+                let q = sys.dofs[i].value;
+                value_lines(&mut md, model, q.formula, q.nominal, q.dim, false);
+                if let Some(modal) = analysis.and_then(|a| a.modes.as_ref()) {
+                    let shares: Vec<f64> = modal
+                        .modes
+                        .iter()
+                        .map(|m| q.nominal * m.shape.get(i).copied().unwrap_or(0.0).powi(2))
+                        .collect();
+                    influence(&mut md, model, sys, modal, &shares, "kinetic energy", |m| {
+                        scaled_dof(m, sys, i)
+                    });
+                }
+            }
+            DefKind::Spring | DefKind::Damper => {
+                let sys = sys?;
+                let i = sys
+                    .elements
                     .iter()
-                    .map(|m| {
-                        let own = el.value.nominal * rel(m, el.a, el.b).powi(2);
-                        let total: f64 = match el.kind {
-                            // φᵀKφ = ω² for a mass-normalised shape.
-                            ElementKind::Spring => m.omega2,
-                            ElementKind::Damper => sys
-                                .elements
-                                .iter()
-                                .filter(|e| e.kind == ElementKind::Damper)
-                                .map(|e| e.value.nominal * rel(m, e.a, e.b).powi(2))
-                                .sum(),
+                    .position(|x| x.name_span == d.name_span)?;
+                let el = &sys.elements[i];
+                value_lines(
+                    &mut md,
+                    model,
+                    el.value.formula,
+                    el.value.nominal,
+                    el.value.dim,
+                    el.rotational,
+                );
+                if let Some(modal) = analysis.and_then(|a| a.modes.as_ref()) {
+                    let rel = |m: &modes::Mode, a: End, b: End| {
+                        let at = |e: End| match e {
+                            End::Ground => 0.0,
+                            End::Dof(k) => m.shape.get(k).copied().unwrap_or(0.0),
                         };
-                        if total > 0.0 { own / total } else { 0.0 }
-                    })
-                    .collect();
-                let what = match el.kind {
-                    ElementKind::Spring => "strain energy",
-                    ElementKind::Damper => "dissipation",
-                };
-                influence(&mut md, model, sys, modal, &shares, what, |m| {
-                    scaled_element(m, sys, i)
-                });
+                        at(a) - at(b)
+                    };
+                    let shares: Vec<f64> = modal
+                        .modes
+                        .iter()
+                        .map(|m| {
+                            let own = el.value.nominal * rel(m, el.a, el.b).powi(2);
+                            let total: f64 = match el.kind {
+                                // φᵀKφ = ω² for a mass-normalised shape.
+                                ElementKind::Spring => m.omega2,
+                                ElementKind::Damper => sys
+                                    .elements
+                                    .iter()
+                                    .filter(|e| e.kind == ElementKind::Damper)
+                                    .map(|e| e.value.nominal * rel(m, e.a, e.b).powi(2))
+                                    .sum(),
+                            };
+                            if total > 0.0 { own / total } else { 0.0 }
+                        })
+                        .collect();
+                    let what = match el.kind {
+                        ElementKind::Spring => "strain energy",
+                        ElementKind::Damper => "dissipation",
+                    };
+                    influence(&mut md, model, sys, modal, &shares, what, |m| {
+                        scaled_element(m, sys, i)
+                    });
+                }
+            }
+            DefKind::Force | DefKind::Torque | DefKind::Motion => {
+                md.push_str("\na drive: its responses are evaluated by `sprung response`");
             }
         }
-        DefKind::Force | DefKind::Torque | DefKind::Motion => {
-            md.push_str("\na drive: its responses are evaluated by `sprung response`");
-        }
-    }
+        Some(())
+    };
+    let _ = details();
     Some(md)
 }
 

@@ -2,7 +2,9 @@
 //! comments), plus the walk over a statement's expressions that other features share.
 
 use sprung_syntax::ast::{Drive, Expr, Item, StatementKind, Value};
-use tower_lsp_server::ls_types::{DocumentSymbol, FoldingRange, FoldingRangeKind, SymbolKind};
+use tower_lsp_server::ls_types::{
+    DocumentSymbol, FoldingRange, FoldingRangeKind, SelectionRange, SymbolInformation, SymbolKind,
+};
 
 use crate::snapshot::Snapshot;
 use crate::symbols::DefKind;
@@ -175,4 +177,112 @@ pub fn folding_ranges(snap: &Snapshot) -> Vec<FoldingRange> {
     flush(&mut run, &mut out);
     out.sort_by_key(|f| f.start_line);
     out
+}
+
+/// Selection ranges: from the innermost expression around the cursor out to its statement, the
+/// system body, the system and the file.
+pub fn selection_range(
+    snap: &Snapshot,
+    pos: tower_lsp_server::ls_types::Position,
+) -> SelectionRange {
+    let offset = snap.offset(pos);
+    let mut spans: Vec<sprung_syntax::Span> = vec![sprung_syntax::Span::new(0, snap.text.len())];
+    for item in &snap.checked.parse.file.items {
+        if !item.span().contains(offset) {
+            continue;
+        }
+        spans.push(item.span());
+        let mut exprs: Vec<&Expr> = Vec::new();
+        match item {
+            Item::Let(l) => {
+                spans.push(l.value.span);
+                value_exprs(&l.value, &mut exprs);
+            }
+            Item::System(s) => {
+                if let Some(b) = s.body_span {
+                    spans.push(b);
+                }
+                for st in s.statements.iter().filter(|st| st.span.contains(offset)) {
+                    spans.push(st.span);
+                    statement_exprs(&st.kind, &mut exprs);
+                }
+            }
+            Item::Use(_) => {}
+        }
+        // Expressions containing the cursor, outermost first (each child inside its parent).
+        while let Some(e) = exprs.pop() {
+            if !e.span.contains(offset) {
+                continue;
+            }
+            spans.push(e.span);
+            use sprung_syntax::ast::ExprKind;
+            match &e.kind {
+                ExprKind::Neg(a) | ExprKind::Paren(a) => exprs.push(a),
+                ExprKind::Binary { lhs, rhs, .. } => {
+                    exprs.push(lhs);
+                    exprs.push(rhs);
+                }
+                ExprKind::Call { args, .. } => exprs.extend(args.iter()),
+                _ => {}
+            }
+        }
+    }
+    if let Some(t) = snap.symbols.at(offset) {
+        spans.push(match t {
+            crate::symbols::Target::Def(d) => snap.symbols.defs[d].name_span,
+            crate::symbols::Target::Ref(r) => snap.symbols.refs[r].span,
+        });
+    }
+    // Outermost first; keep each span only if it lies inside the previous one.
+    spans.sort_by_key(|s| (std::cmp::Reverse(s.len()), s.start));
+    spans.dedup();
+    let mut chain: Option<SelectionRange> = None;
+    let mut last: Option<sprung_syntax::Span> = None;
+    for s in spans {
+        if last.is_some_and(|l| !(l.start <= s.start && s.end <= l.end)) {
+            continue;
+        }
+        last = Some(s);
+        chain = Some(SelectionRange {
+            range: snap.range(s),
+            parent: chain.map(Box::new),
+        });
+    }
+    chain.unwrap_or(SelectionRange {
+        range: snap.range(sprung_syntax::Span::at(offset)),
+        parent: None,
+    })
+}
+
+/// Workspace symbols of one document whose name contains `query` (any case).
+#[allow(deprecated)] // `SymbolInformation::deprecated` must still be given.
+pub fn workspace_symbols(
+    snap: &Snapshot,
+    uri: &tower_lsp_server::ls_types::Uri,
+    query: &str,
+) -> Vec<SymbolInformation> {
+    let q = query.to_lowercase();
+    let systems: Vec<&str> = snap
+        .symbols
+        .defs
+        .iter()
+        .filter(|d| d.kind == DefKind::System)
+        .map(|d| d.name.as_str())
+        .collect();
+    snap.symbols
+        .defs
+        .iter()
+        .filter(|d| d.name.to_lowercase().contains(&q))
+        .map(|d| SymbolInformation {
+            name: d.name.clone(),
+            kind: symbol_kind(d.kind),
+            tags: None,
+            deprecated: None,
+            location: tower_lsp_server::ls_types::Location::new(
+                uri.clone(),
+                snap.range(d.name_span),
+            ),
+            container_name: d.system.and_then(|s| systems.get(s)).map(|s| s.to_string()),
+        })
+        .collect()
 }

@@ -25,7 +25,7 @@ use tower_lsp_server::{Client, LanguageServer};
 
 use crate::document::Document;
 use crate::snapshot::Snapshot;
-use crate::{completion, diagnostics, hints, hover, navigation, outline, semantic};
+use crate::{actions, completion, diagnostics, hints, hover, lens, navigation, outline, semantic};
 
 /// Settings of the server.
 #[derive(Clone, Debug)]
@@ -43,7 +43,7 @@ pub struct ServerConfig {
 impl Default for ServerConfig {
     fn default() -> Self {
         ServerConfig {
-            debounce: Duration::from_millis(15),
+            debounce: Duration::from_millis(3),
             request_timeout: Duration::from_secs(10),
             panic_in_features: false,
         }
@@ -321,7 +321,13 @@ impl LanguageServer for Server {
                     work_done_progress_options: WorkDoneProgressOptions::default(),
                 })),
                 document_symbol_provider: Some(OneOf::Left(true)),
+                code_action_provider: Some(CodeActionProviderCapability::Simple(true)),
+                code_lens_provider: Some(CodeLensOptions {
+                    resolve_provider: Some(false),
+                }),
                 folding_range_provider: Some(FoldingRangeProviderCapability::Simple(true)),
+                selection_range_provider: Some(SelectionRangeProviderCapability::Simple(true)),
+                workspace_symbol_provider: Some(OneOf::Left(true)),
                 semantic_tokens_provider: Some(
                     SemanticTokensServerCapabilities::SemanticTokensOptions(
                         SemanticTokensOptions {
@@ -560,6 +566,64 @@ impl LanguageServer for Server {
             .read(&params.text_document.uri, |s| {
                 Some(outline::folding_ranges(s))
             })
+            .await
+    }
+
+    async fn selection_range(
+        &self,
+        params: SelectionRangeParams,
+    ) -> Result<Option<Vec<SelectionRange>>> {
+        let positions = params.positions;
+        self.inner
+            .read(&params.text_document.uri, move |s| {
+                Some(
+                    positions
+                        .iter()
+                        .map(|p| outline::selection_range(s, *p))
+                        .collect(),
+                )
+            })
+            .await
+    }
+
+    async fn symbol(
+        &self,
+        params: WorkspaceSymbolParams,
+    ) -> Result<Option<WorkspaceSymbolResponse>> {
+        // The newest finished snapshot of every open document, without waiting.
+        let snaps: Vec<(Uri, Arc<Snapshot>)> = self
+            .inner
+            .store()
+            .docs
+            .values()
+            .filter_map(|d| Some((d.uri.clone(), d.latest.borrow().clone()?)))
+            .collect();
+        let query = params.query;
+        let run = move || {
+            snaps
+                .iter()
+                .flat_map(|(uri, s)| outline::workspace_symbols(s, uri, &query))
+                .collect::<Vec<_>>()
+        };
+        match tokio::task::spawn_blocking(run).await {
+            Ok(v) => Ok(Some(WorkspaceSymbolResponse::Flat(v))),
+            Err(_) => Err(Error::internal_error()),
+        }
+    }
+
+    async fn code_action(&self, params: CodeActionParams) -> Result<Option<CodeActionResponse>> {
+        let uri = params.text_document.uri.clone();
+        let range = params.range;
+        self.inner
+            .read(&params.text_document.uri, move |s| {
+                Some(actions::code_actions(s, &uri, range))
+            })
+            .await
+    }
+
+    async fn code_lens(&self, params: CodeLensParams) -> Result<Option<Vec<CodeLens>>> {
+        self.inner
+            .read(&params.text_document.uri, |s| Some(lens::code_lenses(s)))
             .await
     }
 

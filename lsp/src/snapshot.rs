@@ -27,8 +27,18 @@ pub struct Snapshot {
 impl Snapshot {
     /// Checks and analyzes a text. Pure and possibly slow: call it off the async runtime.
     pub fn compute(text: String, version: i32, generation: u64, encoding: Encoding) -> Snapshot {
-        let checked = sprung_engine::check(&text);
-        let analysis = analysis::analyze(&checked, &Config::default());
+        // The engine does not panic by design; if it ever does, the snapshot still exists (with
+        // what could be computed), so requests never wait for a result that will not come.
+        let checked =
+            std::panic::catch_unwind(|| sprung_engine::check(&text)).unwrap_or_else(|_| Checked {
+                parse: sprung_syntax::Parse::default(),
+                model: Default::default(),
+                diagnostics: Vec::new(),
+            });
+        let analysis = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+            analysis::analyze(&checked, &Config::default())
+        }))
+        .unwrap_or_default();
         let symbols = Index::build(&checked.parse.file);
         let index = LineIndex::new(&text);
         Snapshot {

@@ -396,3 +396,148 @@ fn decode_tokens(text: &str, data: &[u64]) -> String {
     }
     out
 }
+
+#[tokio::test]
+async fn selection_ranges_grow_outwards() {
+    let mut c = pad().await;
+    // On `k` inside `sqrt(k * m)` on line 5.
+    let sel = c
+        .request(
+            "textDocument/selectionRange",
+            json!({ "textDocument": { "uri": URI }, "positions": [ { "line": 5, "character": 49 } ] }),
+        )
+        .await
+        .unwrap();
+    let mut out = Vec::new();
+    let mut at = &sel[0];
+    while at.is_object() {
+        out.push(range(&at["range"]));
+        at = &at["parent"];
+    }
+    assert_eq!(
+        out,
+        [
+            "5:49-5:50", // k
+            "5:49-5:54", // k * m
+            "5:44-5:55", // sqrt(k * m)
+            "5:34-5:55", // the whole value
+            "5:2-5:55",  // the statement
+            "1:29-8:1",  // the body
+            "1:0-8:1",   // the system
+            "0:0-9:0",   // the file
+        ]
+    );
+}
+
+#[tokio::test]
+async fn workspace_symbols_over_open_files() {
+    let mut c = pad().await;
+    c.open(
+        "file:///work/other.sprung",
+        "let k_base = 3 kN/m\nsystem other {\n  mass kk = 1 kg\n}\n",
+    )
+    .await;
+    c.hints("file:///work/other.sprung").await; // both analyzed
+    c.hints(URI).await;
+    let syms = c
+        .request("workspace/symbol", json!({ "query": "K" }))
+        .await
+        .unwrap();
+    let mut names: Vec<String> = syms
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|s| {
+            format!(
+                "{} in {}",
+                s["name"].as_str().unwrap(),
+                s["containerName"].as_str().unwrap_or("-")
+            )
+        })
+        .collect();
+    names.sort();
+    assert_eq!(names, ["k in pad", "k_base in -", "kk in other"]);
+}
+
+#[tokio::test]
+async fn hover_shows_doc_comments_where_no_value_is_known() {
+    let mut c = Client::utf16().await;
+    let text = "## Top speed of the drum.\nlet top = 3200 rpm\nsystem s {\n  ## The drum.\n  mass drum = 3 N\n}\n";
+    c.open(URI, text).await;
+    // A top-level let: the engine keeps no value for it, the doc still shows.
+    let md = markdown(&c.at("textDocument/hover", URI, (1, 5)).await);
+    assert!(md.contains("Top speed of the drum."), "{md}");
+    // A mass with a unit error: no value, but its doc and statement.
+    let md = markdown(&c.at("textDocument/hover", URI, (4, 8)).await);
+    assert!(
+        md.contains("The drum.") && md.contains("mass drum = 3 N"),
+        "{md}"
+    );
+}
+
+#[tokio::test]
+async fn code_lens_over_each_system() {
+    let mut c = pad().await;
+    let lenses = c.whole("textDocument/codeLens", URI).await;
+    let l = &lenses[0];
+    assert_eq!(range(&l["range"]), "1:7-1:10");
+    // One mode at 10.07 Hz (hand computation at the top of this file).
+    assert_eq!(l["command"]["title"], "1 mode · lowest 10.1 Hz");
+}
+
+async fn actions(c: &mut Client, line: u32) -> Vec<(String, String)> {
+    let a = c
+        .request(
+            "textDocument/codeAction",
+            json!({ "textDocument": { "uri": URI }, "range": {
+                "start": { "line": line, "character": 0 }, "end": { "line": line, "character": 200 } },
+                "context": { "diagnostics": [] } }),
+        )
+        .await
+        .unwrap();
+    a.as_array()
+        .unwrap()
+        .iter()
+        .map(|x| {
+            let e = &x["edit"]["changes"][URI][0];
+            (
+                x["title"].as_str().unwrap().to_string(),
+                format!("{} {}", range(&e["range"]), e["newText"].as_str().unwrap()),
+            )
+        })
+        .collect()
+}
+
+#[tokio::test]
+async fn quick_fixes_for_pounds_units_and_names() {
+    let mut c = Client::utf16().await;
+    let text = "system s {\n  mass m = 20 lb\n  spring k between m and ground = 40 kn/m\n  damper d between m and ground = 0.1 * sqrt(k * mm)\n}\n";
+    c.open(URI, text).await;
+    assert_eq!(
+        actions(&mut c, 1).await,
+        [
+            (
+                "Replace `lb` with `lbm`".to_string(),
+                "1:14-1:16 lbm".to_string()
+            ),
+            (
+                "Replace `lb` with `lbf`".to_string(),
+                "1:14-1:16 lbf".to_string()
+            ),
+        ]
+    );
+    assert_eq!(
+        actions(&mut c, 2).await,
+        [(
+            "Replace `kn` with `kN`".to_string(),
+            "2:37-2:39 kN".to_string()
+        )]
+    );
+    assert_eq!(
+        actions(&mut c, 3).await,
+        [(
+            "Replace `mm` with `m`".to_string(),
+            "3:49-3:51 m".to_string()
+        )]
+    );
+}
