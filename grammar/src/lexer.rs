@@ -239,6 +239,28 @@ pub const KEYWORDS: &[&str] = &[
     "not", "in", "outside", "ground", "use",
 ];
 
+/// Words with a meaning in some positions that remain ordinary identifiers elsewhere
+/// (language.md §1): requirement subjects and regime words.
+pub const CONTEXTUAL_WORDS: &[&str] = &[
+    "undamped",
+    "underdamped",
+    "critically",
+    "damped",
+    "overdamped",
+    "damping",
+    "frequency",
+    "regime",
+    "amplitude",
+    "transmissibility",
+    "separation",
+    "settling",
+    "overshoot",
+    "sag",
+    "within",
+    "from",
+    "to",
+];
+
 /// Lexes `text`, keeping comments, and attaches units to number literals.
 pub fn lex(text: &str) -> Lexed<'_> {
     let mut raw = Vec::new();

@@ -3,6 +3,7 @@
 //! subjects after `require`, regime words after `is`, units after a number (filtered to the
 //! dimension the statement expects), and names, functions and `pi` in expressions.
 
+use sprung_engine::check::FUNCTIONS;
 use sprung_engine::dim::Dim;
 use sprung_engine::units;
 use sprung_syntax::lexer::{Token, lex};
@@ -28,9 +29,6 @@ const SUBJECTS: &[&str] = &[
     "sag of",
 ];
 const REGIMES: &[&str] = &["undamped", "underdamped", "critically damped", "overdamped"];
-const FUNCTIONS: &[&str] = &[
-    "sqrt", "abs", "min", "max", "exp", "ln", "log10", "sin", "cos", "tan",
-];
 
 fn is_word_char(c: char) -> bool {
     c.is_alphanumeric() || c == '_'
@@ -178,22 +176,7 @@ pub fn complete(snap: &Snapshot, pos: Position) -> Vec<CompletionItem> {
 }
 
 fn starts_statement(t: &Token<'_>) -> bool {
-    matches!(
-        t,
-        Token::Let
-            | Token::System
-            | Token::Use
-            | Token::Mass
-            | Token::Inertia
-            | Token::Spring
-            | Token::Damper
-            | Token::Force
-            | Token::Torque
-            | Token::Motion
-            | Token::Initial
-            | Token::Gravity
-            | Token::Require
-    )
+    t.starts_statement() || t.starts_item()
 }
 
 fn item(label: &str, kind: CompletionItemKind, detail: &str) -> CompletionItem {

@@ -1,6 +1,7 @@
 //! Go to definition, references, document highlights and rename, over the name index.
 
-use sprung_syntax::lexer::KEYWORDS;
+use sprung_engine::check::FUNCTIONS;
+use sprung_syntax::lexer::{CONTEXTUAL_WORDS, KEYWORDS};
 use tower_lsp_server::ls_types::{
     DocumentHighlight, DocumentHighlightKind, Position, PrepareRenameResponse, Range, TextEdit,
 };
@@ -8,37 +9,13 @@ use tower_lsp_server::ls_types::{
 use crate::snapshot::Snapshot;
 use crate::symbols::Target;
 
-/// Words a name may not take: keywords, contextual words, functions and the constant `pi`.
-const RESERVED: &[&str] = &[
-    "undamped",
-    "underdamped",
-    "critically",
-    "damped",
-    "overdamped",
-    "damping",
-    "frequency",
-    "regime",
-    "amplitude",
-    "transmissibility",
-    "separation",
-    "settling",
-    "overshoot",
-    "sag",
-    "within",
-    "from",
-    "to",
-    "sqrt",
-    "abs",
-    "min",
-    "max",
-    "exp",
-    "ln",
-    "log10",
-    "sin",
-    "cos",
-    "tan",
-    "pi",
-];
+/// Whether a name may not be taken: keywords, contextual words, functions and the constant `pi`.
+fn reserved(name: &str) -> bool {
+    KEYWORDS.contains(&name)
+        || CONTEXTUAL_WORDS.contains(&name)
+        || FUNCTIONS.contains(&name)
+        || name == "pi"
+}
 
 pub fn definition(snap: &Snapshot, pos: Position) -> Option<Range> {
     let t = snap.symbols.at(snap.offset(pos))?;
@@ -107,7 +84,7 @@ pub fn rename(
             "`{new_name}` is not a name: use letters, digits and `_`, not starting with a digit"
         ));
     }
-    if KEYWORDS.contains(&new_name) || RESERVED.contains(&new_name) {
+    if reserved(new_name) {
         return Err(format!("`{new_name}` is a reserved word of the language"));
     }
     let def = snap.symbols.def_of(t);

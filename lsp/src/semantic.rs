@@ -3,7 +3,8 @@
 
 use std::collections::HashMap;
 
-use sprung_syntax::lexer::{Token, lex};
+use sprung_engine::check::FUNCTIONS;
+use sprung_syntax::lexer::{CONTEXTUAL_WORDS, Token, lex};
 use tower_lsp_server::ls_types::{
     SemanticToken, SemanticTokenModifier, SemanticTokenType, SemanticTokens, SemanticTokensLegend,
 };
@@ -25,29 +26,6 @@ const TYPES: &[&str] = &[
     "unit",      // 10
     "function",  // 11
     "operator",  // 12
-];
-
-const FUNCTIONS: &[&str] = &[
-    "sqrt", "abs", "min", "max", "exp", "ln", "log10", "sin", "cos", "tan",
-];
-const CONTEXTUAL: &[&str] = &[
-    "undamped",
-    "underdamped",
-    "critically",
-    "damped",
-    "overdamped",
-    "damping",
-    "frequency",
-    "regime",
-    "amplitude",
-    "transmissibility",
-    "separation",
-    "settling",
-    "overshoot",
-    "sag",
-    "within",
-    "from",
-    "to",
 ];
 
 pub fn legend() -> SemanticTokensLegend {
@@ -102,7 +80,7 @@ pub fn tokens(snap: &Snapshot) -> SemanticTokens {
                 {
                     (11, 0)
                 }
-                None if CONTEXTUAL.contains(name) => (0, 0),
+                None if CONTEXTUAL_WORDS.contains(name) => (0, 0),
                 None => continue,
             },
             Token::PlusMinus => (12, 0),

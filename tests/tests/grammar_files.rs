@@ -4,7 +4,7 @@
 
 use std::path::{Path, PathBuf};
 
-use sprung_syntax::lexer::KEYWORDS;
+use sprung_syntax::lexer::{CONTEXTUAL_WORDS, KEYWORDS};
 use sprung_syntax::parse;
 use sprung_tests::fixtures;
 
@@ -51,24 +51,7 @@ fn the_grammar_file_names_every_keyword_and_subject() {
             "keyword `{kw}` missing from sprung.ebnf"
         );
     }
-    for word in [
-        "damping",
-        "frequency",
-        "regime",
-        "separation",
-        "transmissibility",
-        "amplitude",
-        "settling",
-        "overshoot",
-        "sag",
-        "within",
-        "from",
-        "to",
-        "undamped",
-        "underdamped",
-        "critically",
-        "overdamped",
-    ] {
+    for word in CONTEXTUAL_WORDS {
         assert!(
             ebnf.contains(&format!("'{word}'")),
             "word `{word}` missing from sprung.ebnf"

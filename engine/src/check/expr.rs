@@ -28,7 +28,8 @@ pub(crate) trait Names {
     fn candidates(&self) -> Vec<&str>;
 }
 
-pub(crate) const FUNCTIONS: &[&str] = &[
+/// The functions an expression may call (language.md §3).
+pub const FUNCTIONS: &[&str] = &[
     "sqrt", "abs", "min", "max", "exp", "ln", "log10", "sin", "cos", "tan",
 ];
 

@@ -19,6 +19,7 @@ use crate::model::{
     Dof, DofKind, Drive, DriveForm, Element, End, Initial, LetValue, Limit, Model, MotionKind,
     Param, Quantity, Requirement, SystemModel,
 };
+pub use expr::FUNCTIONS;
 use expr::{Compiler, Names, Resolved};
 
 /// Files larger than this are refused before lexing.
