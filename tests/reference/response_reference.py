@@ -34,12 +34,13 @@ import os
 os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 os.environ.setdefault("OMP_NUM_THREADS", "1")
 
-import argparse  # noqa: E402
 import json  # noqa: E402
 import random  # noqa: E402
 import sys  # noqa: E402
 import warnings  # noqa: E402
 from pathlib import Path  # noqa: E402
+
+import fixture_cli  # noqa: E402  (beside this script)
 
 import numpy as np  # noqa: E402
 import scipy  # noqa: E402
@@ -212,26 +213,5 @@ def compare(a, b):
     return problems
 
 
-def main():
-    parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
-    parser.add_argument("--out", type=Path, help="write the fixtures into this folder")
-    parser.add_argument("--compare", type=Path, nargs=2, metavar=("A", "B"))
-    args = parser.parse_args()
-    if args.out:
-        generate(args.out)
-    if args.compare:
-        problems = compare(*args.compare)
-        for p in problems:
-            print(p)
-        if problems:
-            print(f"{len(problems)} difference(s) between the fixtures")
-            return 1
-        print("fixtures agree")
-    if not args.out and not args.compare:
-        parser.print_help()
-        return 2
-    return 0
-
-
 if __name__ == "__main__":
-    sys.exit(main())
+    sys.exit(fixture_cli.main(__doc__, generate, compare))
