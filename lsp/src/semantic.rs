@@ -6,7 +6,8 @@ use std::collections::HashMap;
 use sprung_engine::check::FUNCTIONS;
 use sprung_syntax::lexer::{CONTEXTUAL_WORDS, Token, lex};
 use tower_lsp_server::ls_types::{
-    SemanticToken, SemanticTokenModifier, SemanticTokenType, SemanticTokens, SemanticTokensLegend,
+    SemanticToken, SemanticTokenModifier, SemanticTokenType, SemanticTokens, SemanticTokensEdit,
+    SemanticTokensLegend,
 };
 
 use crate::snapshot::Snapshot;
@@ -122,5 +123,118 @@ pub fn tokens(snap: &Snapshot) -> SemanticTokens {
     SemanticTokens {
         result_id: None,
         data,
+    }
+}
+
+/// The edits that turn the token set `old` into `new`, for `semanticTokens/full/delta`: one
+/// edit replacing what lies between their common prefix and common suffix (empty when they are
+/// equal). Offsets count integers, five per token, as the protocol's flat encoding does; a
+/// token's encoding is relative to the one before it, so an edit that shifts lines changes only
+/// the first token after it and the prefix/suffix stay long.
+pub fn delta(old: &[SemanticToken], new: &[SemanticToken]) -> Vec<SemanticTokensEdit> {
+    let prefix = old.iter().zip(new).take_while(|(a, b)| a == b).count();
+    let suffix = old[prefix..]
+        .iter()
+        .rev()
+        .zip(new[prefix..].iter().rev())
+        .take_while(|(a, b)| a == b)
+        .count();
+    if prefix == old.len() && prefix == new.len() {
+        return Vec::new();
+    }
+    let (old_mid, new_mid) = (
+        &old[prefix..old.len() - suffix],
+        &new[prefix..new.len() - suffix],
+    );
+    vec![SemanticTokensEdit {
+        start: 5 * prefix as u32,
+        delete_count: 5 * old_mid.len() as u32,
+        data: (!new_mid.is_empty()).then(|| new_mid.to_vec()),
+    }]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn tok(delta_line: u32, delta_start: u32, length: u32) -> SemanticToken {
+        SemanticToken {
+            delta_line,
+            delta_start,
+            length,
+            token_type: 0,
+            token_modifiers_bitset: 0,
+        }
+    }
+
+    /// Applies edits as a client does: on the flat integer array.
+    fn apply(old: &[SemanticToken], edits: &[SemanticTokensEdit]) -> Vec<u32> {
+        let mut flat: Vec<u32> = old
+            .iter()
+            .flat_map(|t| {
+                [
+                    t.delta_line,
+                    t.delta_start,
+                    t.length,
+                    t.token_type,
+                    t.token_modifiers_bitset,
+                ]
+            })
+            .collect();
+        for e in edits {
+            let data: Vec<u32> = e
+                .data
+                .iter()
+                .flatten()
+                .flat_map(|t| {
+                    [
+                        t.delta_line,
+                        t.delta_start,
+                        t.length,
+                        t.token_type,
+                        t.token_modifiers_bitset,
+                    ]
+                })
+                .collect();
+            let (s, n) = (e.start as usize, e.delete_count as usize);
+            flat.splice(s..s + n, data);
+        }
+        flat
+    }
+
+    #[test]
+    fn delta_applied_to_the_old_set_gives_the_new_one() {
+        let a = [tok(0, 0, 3), tok(0, 4, 2), tok(1, 2, 5), tok(0, 6, 1)];
+        let cases: Vec<Vec<SemanticToken>> = vec![
+            a.to_vec(),
+            vec![],
+            vec![tok(0, 0, 3), tok(0, 4, 2), tok(2, 2, 5), tok(0, 6, 1)],
+            vec![
+                tok(0, 0, 3),
+                tok(0, 4, 2),
+                tok(0, 1, 1),
+                tok(1, 2, 5),
+                tok(0, 6, 1),
+            ],
+            vec![tok(0, 0, 3), tok(0, 6, 1)],
+            vec![tok(5, 0, 1)],
+            vec![
+                tok(0, 0, 3),
+                tok(0, 4, 2),
+                tok(1, 2, 5),
+                tok(0, 6, 1),
+                tok(0, 6, 1),
+            ],
+        ];
+        for new in &cases {
+            let edits = delta(&a, new);
+            let expect: Vec<u32> = apply(new, &[]);
+            assert_eq!(apply(&a, &edits), expect, "{new:?}");
+            assert!(edits.len() <= 1);
+        }
+        assert!(delta(&a, &a).is_empty());
+        // A changed line in the middle touches one token, not the rest.
+        let edits = delta(&a, &cases[2]);
+        assert_eq!((edits[0].start, edits[0].delete_count), (10, 5));
     }
 }

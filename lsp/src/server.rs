@@ -8,12 +8,20 @@
 //!
 //! Analysis: each change bumps the document's generation and spawns a task that (after a short
 //! debounce for edits, none for the first open) checks the generation is still current, then
-//! analyzes a copy of the text in `spawn_blocking`. A finished snapshot is kept only if no newer
-//! change arrived meanwhile; requests wait (bounded) for a snapshot at least as new as the text
-//! they were asked about, so they never answer from a stale text.
+//! runs two stages in `spawn_blocking`, cheapest first: the checker (parse, names, units), whose
+//! diagnostics are published at once, and then the analysis (modes, responses, corners), after
+//! which the whole set is published. A finished stage is kept only if no newer change arrived
+//! meanwhile; requests wait (bounded) for a snapshot at least as new as the text they were asked
+//! about, so they never answer from a stale text. Features without physics (completion,
+//! navigation, tokens, symbols) need only the first stage; the others wait for the second.
+//!
+//! Inlay hints on a slow model: when the client can be asked to refresh its hints, a hint request
+//! waits only briefly for the analysis; if it is not done, it answers with what the checker knows
+//! (evaluated values) and the server sends `workspace/inlayHint/refresh` once the analysis lands.
+//! Clients that cannot refresh wait for the analysis.
 
 use std::collections::HashMap;
-use std::sync::atomic::{AtomicU64, Ordering};
+use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::sync::{Arc, Mutex, MutexGuard};
 use std::time::Duration;
 
@@ -24,7 +32,7 @@ use tower_lsp_server::ls_types::*;
 use tower_lsp_server::{Client, LanguageServer};
 
 use crate::document::Document;
-use crate::snapshot::Snapshot;
+use crate::snapshot::{Base, Snapshot};
 use crate::{actions, completion, diagnostics, hints, hover, lens, navigation, outline, semantic};
 
 /// Settings of the server.
@@ -35,9 +43,15 @@ pub struct ServerConfig {
     pub debounce: Duration,
     /// How long a request waits for the analysis of the text it is about.
     pub request_timeout: Duration,
+    /// How long an inlay-hint request waits for the analysis before it answers with the
+    /// checker's hints, when the client supports `workspace/inlayHint/refresh`.
+    pub hint_patience: Duration,
     /// Makes every read-only feature panic, to test that a panic becomes an internal error.
     #[doc(hidden)]
     pub panic_in_features: bool,
+    /// Delays every analysis (the second stage), to test the first stage alone.
+    #[doc(hidden)]
+    pub analysis_delay: Duration,
 }
 
 impl Default for ServerConfig {
@@ -45,7 +59,9 @@ impl Default for ServerConfig {
         ServerConfig {
             debounce: Duration::from_millis(3),
             request_timeout: Duration::from_secs(10),
+            hint_patience: Duration::from_millis(60),
             panic_in_features: false,
+            analysis_delay: Duration::ZERO,
         }
     }
 }
@@ -62,6 +78,8 @@ struct Inner {
     config: ServerConfig,
     store: Mutex<Store>,
     encoding: Mutex<Encoding>,
+    /// Whether the client supports `workspace/inlayHint/refresh`.
+    hint_refresh: AtomicBool,
     generation: AtomicU64,
     /// Serializes publishing, so an older result can never be sent after a newer one.
     publish: tokio::sync::Mutex<()>,
@@ -80,6 +98,38 @@ struct DocState {
     latest: watch::Sender<Option<Arc<Snapshot>>>,
     /// The diagnostics last published for this document.
     published: Option<Vec<Diagnostic>>,
+    /// The checker's part of them (what the first stage compares against).
+    published_checker: Option<Vec<Diagnostic>>,
+    /// Inlay hints were answered for this generation before its analysis was done.
+    partial_hints: bool,
+    /// The semantic tokens last sent, for `semanticTokens/full/delta`.
+    tokens: Option<(String, Vec<SemanticToken>)>,
+}
+
+impl DocState {
+    fn new(uri: Uri, doc: Document, generation: u64) -> DocState {
+        let (latest, _) = watch::channel(None);
+        DocState {
+            uri,
+            doc,
+            generation,
+            latest,
+            published: None,
+            // Nothing published reads as no diagnostics: a clean first stage says nothing new.
+            published_checker: Some(Vec::new()),
+            partial_hints: false,
+            tokens: None,
+        }
+    }
+}
+
+/// What a request needs of a snapshot.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Need {
+    /// The checker's result (parse, names, values).
+    Checked,
+    /// The analysis as well (modes, responses, verdicts).
+    Analysis,
 }
 
 fn key(uri: &Uri) -> String {
@@ -98,6 +148,7 @@ impl Server {
                 config,
                 store: Mutex::new(Store::default()),
                 encoding: Mutex::new(Encoding::Utf16),
+                hint_refresh: AtomicBool::new(false),
                 generation: AtomicU64::new(0),
                 publish: tokio::sync::Mutex::new(()),
             }),
@@ -120,7 +171,7 @@ impl Server {
 
     /// Waits for the analysis of the document's current text (for tests and benchmarks).
     pub async fn analyzed(&self, uri: &Uri) -> Option<Arc<Snapshot>> {
-        self.inner.snapshot(uri).await
+        self.inner.snapshot(uri, Need::Analysis).await
     }
 }
 
@@ -146,7 +197,7 @@ impl Inner {
             .is_some_and(|d| d.generation == generation)
     }
 
-    /// Starts the analysis of one generation of a document.
+    /// Starts the two stages of one generation of a document.
     fn schedule(
         self: &Arc<Self>,
         key: String,
@@ -164,41 +215,68 @@ impl Inner {
             if !inner.is_current(&key, generation) {
                 return; // superseded by a newer edit
             }
-            let computed = tokio::task::spawn_blocking(move || {
-                Snapshot::compute(text, version, generation, encoding)
+            let checked = tokio::task::spawn_blocking(move || {
+                Arc::new(Base::compute(text, version, generation, encoding))
             })
             .await;
-            let snap = match computed {
-                Ok(s) => Arc::new(s),
-                Err(e) => {
-                    let msg = format!("sprung: the analysis of {key} failed: {e}");
-                    inner.client.log_message(MessageType::ERROR, msg).await;
-                    return;
-                }
+            let base = match checked {
+                Ok(b) => b,
+                Err(e) => return inner.log_failure(&key, e).await,
             };
-            inner.finish(&key, snap).await;
+            let first = Arc::new(Snapshot::checked_only(Arc::clone(&base)));
+            if !inner.finish(&key, first).await {
+                return;
+            }
+            let pause = inner.config.analysis_delay;
+            if !pause.is_zero() {
+                tokio::time::sleep(pause).await;
+            }
+            if !inner.is_current(&key, generation) {
+                return;
+            }
+            match tokio::task::spawn_blocking(move || Snapshot::analyze(base)).await {
+                Ok(s) => {
+                    inner.finish(&key, Arc::new(s)).await;
+                }
+                Err(e) => inner.log_failure(&key, e).await,
+            }
         });
     }
 
-    /// Keeps a finished snapshot if it is still current, and publishes its diagnostics when
-    /// they changed.
-    async fn finish(&self, key: &str, snap: Arc<Snapshot>) {
+    async fn log_failure(&self, key: &str, e: tokio::task::JoinError) {
+        let msg = format!("sprung: the analysis of {key} failed: {e}");
+        self.client.log_message(MessageType::ERROR, msg).await;
+    }
+
+    /// Keeps a finished stage if it is still current, and publishes its diagnostics when they
+    /// changed: the first stage only when the checker's part changed (so a failed requirement
+    /// does not blink out while the analysis of an unrelated edit runs), the second whenever the
+    /// whole set did. Returns whether the snapshot was current.
+    async fn finish(self: &Arc<Self>, key: &str, snap: Arc<Snapshot>) -> bool {
         let _serial = self.publish.lock().await;
-        let publish = {
+        let (publish, refresh) = {
             let mut store = self.store();
             let Some(state) = store.docs.get_mut(key) else {
-                return;
+                return false;
             };
             if state.generation != snap.generation {
-                return; // a newer edit arrived while this one was analyzed
+                return false; // a newer edit arrived while this one was analyzed
             }
             state.latest.send_replace(Some(Arc::clone(&snap)));
             let diags = diagnostics::to_lsp(&snap, &state.uri);
-            if state.published.as_ref() == Some(&diags) {
-                None
+            let changed = if snap.analyzed {
+                state.published.as_ref() != Some(&diags)
             } else {
+                let changed = state.published_checker.as_ref() != Some(&diags);
+                state.published_checker = Some(diags.clone());
+                changed
+            };
+            let refresh = snap.analyzed && std::mem::take(&mut state.partial_hints);
+            if changed {
                 state.published = Some(diags.clone());
-                Some((state.uri.clone(), diags, snap.version))
+                (Some((state.uri.clone(), diags, snap.version)), refresh)
+            } else {
+                (None, refresh)
             }
         };
         if let Some((uri, diags, version)) = publish {
@@ -206,20 +284,73 @@ impl Inner {
                 .publish_diagnostics(uri, diags, Some(version))
                 .await;
         }
+        if refresh {
+            // A request to the client: its answer is not ours to wait for.
+            let client = self.client.clone();
+            tokio::spawn(async move {
+                let _ = client.inlay_hint_refresh().await;
+            });
+        }
+        true
     }
 
     /// The newest snapshot at least as new as the document's current text; `None` for an
     /// unknown or closed document, or when the analysis does not finish in time.
-    async fn snapshot(&self, uri: &Uri) -> Option<Arc<Snapshot>> {
+    async fn snapshot(&self, uri: &Uri, need: Need) -> Option<Arc<Snapshot>> {
+        self.snapshot_within(uri, need, self.config.request_timeout)
+            .await
+    }
+
+    async fn snapshot_within(
+        &self,
+        uri: &Uri,
+        need: Need,
+        limit: Duration,
+    ) -> Option<Arc<Snapshot>> {
         let (generation, mut rx) = {
             let store = self.store();
             let state = store.docs.get(&key(uri))?;
             (state.generation, state.latest.subscribe())
         };
-        let wait = rx.wait_for(|s| s.as_ref().is_some_and(|s| s.generation >= generation));
-        match tokio::time::timeout(self.config.request_timeout, wait).await {
+        let wait = rx.wait_for(|s| {
+            s.as_ref().is_some_and(|s| {
+                s.generation >= generation && (need == Need::Checked || s.analyzed)
+            })
+        });
+        match tokio::time::timeout(limit, wait).await {
             Ok(Ok(s)) => s.clone(),
             _ => None,
+        }
+    }
+
+    /// The snapshot an inlay-hint request answers from: the analyzed one, or (when the client
+    /// can refresh and the analysis takes longer than the hint patience) the checker's, with a
+    /// refresh promised for when the analysis lands.
+    async fn hint_snapshot(&self, uri: &Uri) -> Option<Arc<Snapshot>> {
+        if !self.hint_refresh.load(Ordering::Relaxed) {
+            return self.snapshot(uri, Need::Analysis).await;
+        }
+        let patience = self.config.hint_patience;
+        if let Some(s) = self.snapshot_within(uri, Need::Analysis, patience).await {
+            return Some(s);
+        }
+        let snap = self.snapshot(uri, Need::Checked).await?;
+        if snap.analyzed {
+            return Some(snap);
+        }
+        let mut store = self.store();
+        let state = store.docs.get_mut(&key(uri))?;
+        if state.generation != snap.generation {
+            return None; // edited meanwhile: the client asks again
+        }
+        // Still running? Then promise a refresh; if it landed meanwhile, answer from it.
+        let latest = state.latest.borrow().clone();
+        match latest {
+            Some(l) if l.generation == snap.generation && l.analyzed => Some(l),
+            _ => {
+                state.partial_hints = true;
+                Some(snap)
+            }
         }
     }
 
@@ -236,12 +367,22 @@ impl Inner {
 
     /// Runs a read-only feature on the document's snapshot off the runtime. A panic in the
     /// feature becomes an internal error; an unknown document an empty answer.
-    async fn read<T, F>(&self, uri: &Uri, f: F) -> Result<Option<T>>
+    async fn read<T, F>(&self, uri: &Uri, need: Need, f: F) -> Result<Option<T>>
     where
         T: Send + 'static,
         F: FnOnce(&Snapshot) -> Option<T> + Send + 'static,
     {
-        let Some(snap) = self.snapshot(uri).await else {
+        let snap = self.snapshot(uri, need).await;
+        self.run(snap, f).await
+    }
+
+    /// Runs a feature on a snapshot (see [`Inner::read`]).
+    async fn run<T, F>(&self, snap: Option<Arc<Snapshot>>, f: F) -> Result<Option<T>>
+    where
+        T: Send + 'static,
+        F: FnOnce(&Snapshot) -> Option<T> + Send + 'static,
+    {
+        let Some(snap) = snap else {
             return Ok(None);
         };
         let panic = self.config.panic_in_features;
@@ -260,6 +401,18 @@ impl Inner {
                 Err(err)
             }
         }
+    }
+}
+
+impl Inner {
+    /// Stamps a token set with a fresh result id and keeps it for the next delta request.
+    fn remember_tokens(&self, uri: &Uri, mut tokens: SemanticTokens) -> SemanticTokens {
+        let id = self.next_generation().to_string();
+        tokens.result_id = Some(id.clone());
+        if let Some(d) = self.store().docs.get_mut(&key(uri)) {
+            d.tokens = Some((id, tokens.data.clone()));
+        }
+        tokens
     }
 }
 
@@ -284,6 +437,14 @@ impl LanguageServer for Server {
             .encoding
             .lock()
             .unwrap_or_else(|p| p.into_inner()) = enc;
+        let refresh = params
+            .capabilities
+            .workspace
+            .as_ref()
+            .and_then(|w| w.inlay_hint.as_ref())
+            .and_then(|h| h.refresh_support)
+            .unwrap_or(false);
+        self.inner.hint_refresh.store(refresh, Ordering::Relaxed);
         let position_encoding = match enc {
             Encoding::Utf8 => PositionEncodingKind::UTF8,
             _ => PositionEncodingKind::UTF16,
@@ -332,7 +493,7 @@ impl LanguageServer for Server {
                     SemanticTokensServerCapabilities::SemanticTokensOptions(
                         SemanticTokensOptions {
                             legend: semantic::legend(),
-                            full: Some(SemanticTokensFullOptions::Bool(true)),
+                            full: Some(SemanticTokensFullOptions::Delta { delta: Some(true) }),
                             range: None,
                             work_done_progress_options: WorkDoneProgressOptions::default(),
                         },
@@ -355,16 +516,9 @@ impl LanguageServer for Server {
         let text = td.text.clone();
         {
             let mut store = self.inner.store();
-            let (latest, _) = watch::channel(None);
             store.docs.insert(
                 k.clone(),
-                DocState {
-                    uri: td.uri,
-                    doc: Document::new(td.text, td.version),
-                    generation,
-                    latest,
-                    published: None,
-                },
+                DocState::new(td.uri, Document::new(td.text, td.version), generation),
             );
         }
         self.inner
@@ -406,16 +560,9 @@ impl LanguageServer for Server {
                             match doc.apply(version, rest, enc) {
                                 Ok(()) => {
                                     let text = doc.text.clone();
-                                    let (latest, _) = watch::channel(None);
                                     store.docs.insert(
                                         k.clone(),
-                                        DocState {
-                                            uri: uri.clone(),
-                                            doc,
-                                            generation,
-                                            latest,
-                                            published: None,
-                                        },
+                                        DocState::new(uri.clone(), doc, generation),
                                     );
                                     Ok((generation, text))
                                 }
@@ -451,23 +598,24 @@ impl LanguageServer for Server {
     async fn hover(&self, params: HoverParams) -> Result<Option<Hover>> {
         let p = params.text_document_position_params;
         self.inner
-            .read(&p.text_document.uri, move |s| hover::hover(s, p.position))
+            .read(&p.text_document.uri, Need::Analysis, move |s| {
+                hover::hover(s, p.position)
+            })
             .await
     }
 
     async fn inlay_hint(&self, params: InlayHintParams) -> Result<Option<Vec<InlayHint>>> {
         let range = params.range;
+        let snap = self.inner.hint_snapshot(&params.text_document.uri).await;
         self.inner
-            .read(&params.text_document.uri, move |s| {
-                Some(hints::inlay_hints(s, range))
-            })
+            .run(snap, move |s| Some(hints::inlay_hints(s, range)))
             .await
     }
 
     async fn completion(&self, params: CompletionParams) -> Result<Option<CompletionResponse>> {
         let p = params.text_document_position;
         self.inner
-            .read(&p.text_document.uri, move |s| {
+            .read(&p.text_document.uri, Need::Checked, move |s| {
                 Some(CompletionResponse::Array(completion::complete(
                     s, p.position,
                 )))
@@ -482,7 +630,7 @@ impl LanguageServer for Server {
         let p = params.text_document_position_params;
         let uri = p.text_document.uri.clone();
         self.inner
-            .read(&p.text_document.uri, move |s| {
+            .read(&p.text_document.uri, Need::Checked, move |s| {
                 navigation::definition(s, p.position)
                     .map(|r| GotoDefinitionResponse::Scalar(Location::new(uri, r)))
             })
@@ -494,7 +642,7 @@ impl LanguageServer for Server {
         let include = params.context.include_declaration;
         let uri = p.text_document.uri.clone();
         self.inner
-            .read(&p.text_document.uri, move |s| {
+            .read(&p.text_document.uri, Need::Checked, move |s| {
                 let ranges = navigation::references(s, p.position, include)?;
                 Some(
                     ranges
@@ -512,7 +660,7 @@ impl LanguageServer for Server {
     ) -> Result<Option<Vec<DocumentHighlight>>> {
         let p = params.text_document_position_params;
         self.inner
-            .read(&p.text_document.uri, move |s| {
+            .read(&p.text_document.uri, Need::Checked, move |s| {
                 navigation::highlights(s, p.position)
             })
             .await
@@ -524,7 +672,7 @@ impl LanguageServer for Server {
     ) -> Result<Option<PrepareRenameResponse>> {
         let pos = params.position;
         self.inner
-            .read(&params.text_document.uri, move |s| {
+            .read(&params.text_document.uri, Need::Checked, move |s| {
                 navigation::prepare_rename(s, pos)
             })
             .await
@@ -536,7 +684,7 @@ impl LanguageServer for Server {
         let new_name = params.new_name;
         let answer = self
             .inner
-            .read(&p.text_document.uri, move |s| {
+            .read(&p.text_document.uri, Need::Checked, move |s| {
                 Some(navigation::rename(s, p.position, &new_name))
             })
             .await?;
@@ -555,7 +703,7 @@ impl LanguageServer for Server {
         params: DocumentSymbolParams,
     ) -> Result<Option<DocumentSymbolResponse>> {
         self.inner
-            .read(&params.text_document.uri, |s| {
+            .read(&params.text_document.uri, Need::Checked, |s| {
                 Some(DocumentSymbolResponse::Nested(outline::document_symbols(s)))
             })
             .await
@@ -563,7 +711,7 @@ impl LanguageServer for Server {
 
     async fn folding_range(&self, params: FoldingRangeParams) -> Result<Option<Vec<FoldingRange>>> {
         self.inner
-            .read(&params.text_document.uri, |s| {
+            .read(&params.text_document.uri, Need::Checked, |s| {
                 Some(outline::folding_ranges(s))
             })
             .await
@@ -575,7 +723,7 @@ impl LanguageServer for Server {
     ) -> Result<Option<Vec<SelectionRange>>> {
         let positions = params.positions;
         self.inner
-            .read(&params.text_document.uri, move |s| {
+            .read(&params.text_document.uri, Need::Checked, move |s| {
                 Some(
                     positions
                         .iter()
@@ -615,7 +763,7 @@ impl LanguageServer for Server {
         let uri = params.text_document.uri.clone();
         let range = params.range;
         self.inner
-            .read(&params.text_document.uri, move |s| {
+            .read(&params.text_document.uri, Need::Analysis, move |s| {
                 Some(actions::code_actions(s, &uri, range))
             })
             .await
@@ -623,7 +771,9 @@ impl LanguageServer for Server {
 
     async fn code_lens(&self, params: CodeLensParams) -> Result<Option<Vec<CodeLens>>> {
         self.inner
-            .read(&params.text_document.uri, |s| Some(lens::code_lenses(s)))
+            .read(&params.text_document.uri, Need::Analysis, |s| {
+                Some(lens::code_lenses(s))
+            })
             .await
     }
 
@@ -631,10 +781,40 @@ impl LanguageServer for Server {
         &self,
         params: SemanticTokensParams,
     ) -> Result<Option<SemanticTokensResult>> {
-        self.inner
-            .read(&params.text_document.uri, |s| {
-                Some(SemanticTokensResult::Tokens(semantic::tokens(s)))
-            })
-            .await
+        let uri = params.text_document.uri;
+        let tokens = self
+            .inner
+            .read(&uri, Need::Checked, |s| Some(semantic::tokens(s)))
+            .await?;
+        Ok(tokens.map(|t| SemanticTokensResult::Tokens(self.inner.remember_tokens(&uri, t))))
+    }
+
+    async fn semantic_tokens_full_delta(
+        &self,
+        params: SemanticTokensDeltaParams,
+    ) -> Result<Option<SemanticTokensFullDeltaResult>> {
+        let uri = params.text_document.uri;
+        let Some(tokens) = self
+            .inner
+            .read(&uri, Need::Checked, |s| Some(semantic::tokens(s)))
+            .await?
+        else {
+            return Ok(None);
+        };
+        let previous = self.inner.store().docs.get(&key(&uri)).and_then(|d| {
+            d.tokens
+                .as_ref()
+                .filter(|(id, _)| *id == params.previous_result_id)
+                .map(|(_, data)| data.clone())
+        });
+        let tokens = self.inner.remember_tokens(&uri, tokens);
+        Ok(Some(match previous {
+            Some(old) => SemanticTokensFullDeltaResult::TokensDelta(SemanticTokensDelta {
+                result_id: tokens.result_id,
+                edits: semantic::delta(&old, &tokens.data),
+            }),
+            // An unknown previous result: the whole set, as the protocol allows.
+            None => SemanticTokensFullDeltaResult::Tokens(tokens),
+        }))
     }
 }

@@ -136,6 +136,11 @@ impl Client {
         .await
     }
 
+    /// The next message the server sends (a notification or a request), as method and params.
+    pub async fn next_message(&mut self) -> (String, Value) {
+        self.notifications.recv().await.expect("server alive")
+    }
+
     /// Whether a `publishDiagnostics` for `uri` arrives within `wait`.
     pub async fn diagnostics_within(&mut self, uri: &str, wait: Duration) -> Option<Value> {
         tokio::time::timeout(wait, self.diagnostics(uri)).await.ok()
