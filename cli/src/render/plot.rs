@@ -139,11 +139,11 @@ pub fn response_svg(plot: &ResponsePlot) -> Result<String, String> {
     let phase = unwrap_degrees(points.iter().map(|p| p.2));
     let phase: Vec<(f64, f64)> = points.iter().map(|p| p.0).zip(phase).collect();
     let (p_lo, p_hi) = extent(phase.iter().map(|p| p.1));
-    let step = match p_hi - p_lo {
-        s if s <= 270.0 => 45.0,
-        s if s <= 720.0 => 90.0,
-        _ => 180.0,
-    };
+    // The smallest step of 45° × 2^k that gives at most 8 ticks.
+    let step = (0..24)
+        .map(|k| 45.0 * f64::from(1u32 << k))
+        .find(|s| (p_hi - p_lo) / s <= 8.0)
+        .unwrap_or(360.0);
     let (p_lo, p_hi) = (
         (p_lo / step).floor() * step,
         ((p_hi / step).ceil() * step).max((p_lo / step).floor() * step + step),
@@ -265,15 +265,8 @@ pub fn response_svg(plot: &ResponsePlot) -> Result<String, String> {
                     .or_text()?;
             }
         }
-        // Labels along the top of the magnitude panel, the drive's after the modes'.
-        let mut labels: Vec<Label> = modes
-            .iter()
-            .map(|&(i, f)| Label {
-                x: top.backend_coord(&(f, m_hi)).0,
-                text: format!("f{} {} Hz", i + 1, sig(f)),
-                color: MODE,
-            })
-            .collect();
+        // Labels along the top of the magnitude panel, the drive's first so it always fits.
+        let mut labels: Vec<Label> = Vec::new();
         if let Some((text, a, _, color)) = drive_label {
             labels.push(Label {
                 x: top.backend_coord(&(a, m_hi)).0,
@@ -281,9 +274,24 @@ pub fn response_svg(plot: &ResponsePlot) -> Result<String, String> {
                 color,
             });
         }
+        labels.extend(modes.iter().map(|&(i, f)| Label {
+            x: top.backend_coord(&(f, m_hi)).0,
+            text: format!("f{} {} Hz", i + 1, sig(f)),
+            color: MODE,
+        }));
         let area_x = top.plotting_area().get_pixel_range().0;
         let top_y = top.backend_coord(&(f_lo, m_hi)).1;
-        place_labels(&root, &labels, (area_x.start, area_x.end), top_y + 4)?;
+        let left_out = place_labels(&root, &labels, (area_x.start, area_x.end), top_y + 4)?;
+        if left_out > 0 {
+            root.draw(&Text::new(
+                format!(
+                    "{left_out} natural frequencies marked but not labelled (too close); `sprung modes` lists them"
+                ),
+                (area_x.end, top_y - 8),
+                text_style(MARK_SIZE, MODE).pos(Pos::new(HPos::Right, VPos::Bottom)),
+            ))
+            .or_text()?;
+        }
         root.present().or_text()?;
     }
     Ok(svg)
@@ -582,15 +590,19 @@ struct Label {
     color: RGBColor,
 }
 
+/// Most rows of labels above a chart's curves.
+const LABEL_ROWS: usize = 3;
+
 /// Labels beside their marks (left-anchored just right of the mark, or right-anchored when
-/// they would run off the area), in rows: each goes in the first row it fits without
-/// overlapping, in the order given.
+/// they would run off the area), in up to [`LABEL_ROWS`] rows: each goes in the first row it
+/// fits without overlapping, in the order given. Returns how many found no room.
 fn place_labels(
     root: &DrawingArea<SVGBackend<'_>, Shift>,
     labels: &[Label],
     area: (i32, i32),
     top: i32,
-) -> Result<(), String> {
+) -> Result<usize, String> {
+    let mut left_out = 0;
     let row_height = (MARK_SIZE * 1.2).ceil() as i32;
     // The pixel spans taken in each row.
     let mut rows: Vec<Vec<(i32, i32)>> = Vec::new();
@@ -604,9 +616,13 @@ fn place_labels(
         let free = |row: &Vec<(i32, i32)>| row.iter().all(|(a, b)| end + 6 < *a || *b + 6 < start);
         let row = match rows.iter().position(free) {
             Some(r) => r,
-            None => {
+            None if rows.len() < LABEL_ROWS => {
                 rows.push(Vec::new());
                 rows.len() - 1
+            }
+            None => {
+                left_out += 1;
+                continue;
             }
         };
         rows[row].push((start, end));
@@ -617,7 +633,7 @@ fn place_labels(
         ))
         .or_text()?;
     }
-    Ok(())
+    Ok(left_out)
 }
 
 /// Where a label for a mark at pixel `x` goes: just right of it, or just left when it
