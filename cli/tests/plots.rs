@@ -424,6 +424,9 @@ fn simulate_plot_has_the_settling_band_and_marks() {
             .collect::<Vec<_>>(),
     );
     assert!(given.has("settling band ±2% (given)"));
+    let out = sprung(base.iter().chain(&["--format", "svg", "--within", "0"]));
+    assert_eq!(code(&out), 2);
+    assert!(out.stdout.is_empty());
 }
 
 #[test]
@@ -439,6 +442,17 @@ fn a_response_that_does_not_settle_says_so() {
     ]);
     assert!(svg.has("does not settle within ±2% in 1.00 s"));
     assert!(svg.has("settling band ±2% (default)"));
+    // An impulse settles to zero: the band is a fraction of the peak instead.
+    write(
+        &file,
+        "system s {\n  mass m = 12 kg\n  spring k between m and ground = 30 kN/m\n  damper c between m and ground = 60 N*s/m\n  force knock on m = impulse 3 N*s\n}\n",
+    );
+    let svg = svg_of(&[
+        "simulate", path, "--at", "m", "--for", "3", "--format", "svg",
+    ]);
+    assert!(svg.has("settling band ±2% of the peak (default)"));
+    assert!(svg.has("final value 0 mm"));
+    assert_eq!(svg.starting("settles at ").len(), 1);
 }
 
 #[test]

@@ -105,6 +105,9 @@ pub struct Settling {
     /// Half the band's width (m or rad): `within` × |final value|, or × the peak |x| when
     /// the final value is zero (the rule of [`crate::time_response::Transient::settling_time`]).
     pub half_width: f64,
+    /// Whether the band is relative to the peak |x| (a zero final value) rather than the
+    /// final value.
+    pub of_peak: bool,
     /// The settling time (s); `None` when the response is still outside the band near the
     /// end of the window.
     pub time_s: Option<f64>,
@@ -328,11 +331,13 @@ pub fn time_history(
         Err(e) => return Err(e.to_string()),
     };
     // The same band as `Transient::settling_time` measures against.
-    let half_width = if final_value != 0.0 && final_value.abs() > 1e-12 * peak.value {
-        within * final_value.abs()
-    } else {
-        within * peak.value
-    };
+    let of_peak = !(final_value != 0.0 && final_value.abs() > 1e-12 * peak.value);
+    let half_width = within
+        * if of_peak {
+            peak.value
+        } else {
+            final_value.abs()
+        };
     progress(4, TIME_STEPS);
     Ok(TimeHistory {
         points,
@@ -346,6 +351,7 @@ pub fn time_history(
                 within,
                 source,
                 half_width,
+                of_peak,
                 time_s,
             },
         }),
@@ -432,6 +438,7 @@ mod tests {
         assert_eq!(m.settling.within, 0.05);
         assert_eq!(m.settling.source, WithinSource::Requirement);
         assert!((m.settling.half_width - 0.05 * xf).abs() < 1e-15);
+        assert!(!m.settling.of_peak);
         // At the settling time the response is on the band's edge (the band we report is the
         // one the engine measured against), and the envelope e^(−ζωn t)/√(1−ζ²) bounds it.
         let ts = m.settling.time_s.expect("settles within 3 s");
@@ -469,6 +476,46 @@ mod tests {
             ..given
         };
         assert!(time_history(&c.model, sys, &bad, &mut |_, _| {}).is_err());
+    }
+
+    #[test]
+    fn an_impulse_settles_into_a_band_around_zero_sized_by_its_peak() {
+        // Standard vibration texts (from memory): an impulse J on m, k, c gives
+        // x = J/(m ωd) e^(−ζωn t) sin(ωd t), which peaks where tan(ωd t) = √(1−ζ²)/ζ.
+        let c = checked(
+            "system s {
+  mass m = 12 kg
+  spring k between m and ground = 30 kN/m
+  damper c between m and ground = 60 N*s/m
+  force knock on m = impulse 3 N*s
+}
+",
+        );
+        let sys = &c.model.systems[0];
+        let request = TimeRequest {
+            dof: 0,
+            duration: 3.0,
+            measures: true,
+            within: None,
+        };
+        let h = time_history(&c.model, sys, &request, &mut |_, _| {});
+        let m = h.ok().and_then(|h| h.measures).expect("measures");
+        let (wn, z) = (
+            (30e3f64 / 12.0).sqrt(),
+            60.0 / (2.0 * (30e3f64 * 12.0).sqrt()),
+        );
+        let wd = wn * (1.0 - z * z).sqrt();
+        let tp = ((1.0 - z * z).sqrt() / z).atan() / wd;
+        let xp = 3.0 / (12.0 * wd) * (-z * wn * tp).exp() * (wd * tp).sin();
+        assert_eq!(m.final_value, 0.0);
+        assert!(
+            (m.peak.time_s - tp).abs() < 1e-6,
+            "{} vs {tp}",
+            m.peak.time_s
+        );
+        assert!((m.peak.displacement - xp).abs() < 1e-9 * xp);
+        assert!(m.settling.of_peak);
+        assert!((m.settling.half_width - 0.02 * xp).abs() < 1e-9 * xp);
     }
 
     #[test]

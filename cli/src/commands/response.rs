@@ -184,6 +184,14 @@ pub fn run_simulate(args: &SimulateArgs) -> io::Result<Status> {
         Ok(d) => d,
         Err(status) => return Ok(status),
     };
+    if let Some(p) = args.within
+        && !(p > 0.0 && p < 100.0)
+    {
+        report_error(&format!(
+            "--within is a percentage between 0 and 100, found {p}"
+        ));
+        return Ok(Status::Usage);
+    }
     let request = TimeRequest {
         dof,
         duration: args.duration,

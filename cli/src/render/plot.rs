@@ -336,7 +336,7 @@ pub fn time_svg(plot: &TimePlot) -> Result<String, String> {
         DofKind::Rotational => "rotation",
     };
     let heading = format!(
-        "Time response of `{}` to the step, impulse and initial loads",
+        "Time response of `{}` (steps, impulses, initial conditions)",
         plot.at
     );
 
@@ -399,7 +399,14 @@ pub fn time_svg(plot: &TimePlot) -> Result<String, String> {
             let right = area.0.end - 6;
             let (_, y_band) = chart.backend_coord(&(t_hi, fin + half));
             root.draw(&Text::new(
-                format!("settling band ±{percent}% ({from})"),
+                format!(
+                    "settling band ±{percent}%{} ({from})",
+                    if m.settling.of_peak {
+                        " of the peak"
+                    } else {
+                        ""
+                    }
+                ),
                 (right, y_band - 4),
                 text_style(MARK_SIZE, BAND_TEXT).pos(Pos::new(HPos::Right, VPos::Bottom)),
             ))
@@ -460,7 +467,7 @@ pub fn time_svg(plot: &TimePlot) -> Result<String, String> {
                 };
                 root.draw(&Text::new(
                     text,
-                    (x, y.clamp(area.1.start + 2, area.1.end - 2)),
+                    (x, y.min(area.1.end - 2).max(area.1.start + 2)),
                     text_style(MARK_SIZE, PEAK).pos(Pos::new(anchor, v)),
                 ))
                 .or_text()?;
