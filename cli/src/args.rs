@@ -62,8 +62,23 @@ pub struct ResponseArgs {
     /// Show transmissibility instead of amplitude.
     #[arg(long)]
     pub transmitted: bool,
+    /// Output format: `csv`, `json` or `svg` (a plot of magnitude and phase).
     #[arg(long, value_enum, default_value_t = DataFormat::Csv)]
     pub format: DataFormat,
+    /// The magnitude axis of the SVG plot: `db` (20·log10, re 1 m, 1 rad or a ratio of 1)
+    /// shows the resonance peaks and the isolation region together; `linear` in the
+    /// quantity's own unit.
+    #[arg(long, value_enum, default_value_t = Scale::Db)]
+    pub scale: Scale,
+    /// Write to this file instead of stdout.
+    #[arg(long, short, value_name = "FILE")]
+    pub output: Option<PathBuf>,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum Scale {
+    Db,
+    Linear,
 }
 
 #[derive(Debug, clap::Args)]
@@ -80,14 +95,24 @@ pub struct SimulateArgs {
     /// Duration, seconds.
     #[arg(long = "for", value_name = "SECONDS")]
     pub duration: f64,
+    /// The settling band, percent of the final value (default: the tightest `settling of
+    /// NODE within P%` requirement on the node, else 2%). Used by `json` and `svg`.
+    #[arg(long, value_name = "PERCENT")]
+    pub within: Option<f64>,
+    /// Output format: `csv`, `json` (with the final value, peak and settling time) or `svg`
+    /// (a plot with those marked).
     #[arg(long, value_enum, default_value_t = DataFormat::Csv)]
     pub format: DataFormat,
+    /// Write to this file instead of stdout.
+    #[arg(long, short, value_name = "FILE")]
+    pub output: Option<PathBuf>,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
 pub enum DataFormat {
     Csv,
     Json,
+    Svg,
 }
 
 #[derive(Debug, clap::Args)]

@@ -1,4 +1,5 @@
-//! Renderers: engine results to terminal text ([`human`]) or to the JSON contract ([`json`]).
+//! Renderers: engine results to terminal text ([`human`]), to the JSON contract ([`json`]) or
+//! to SVG plots ([`plot`]).
 //! Byte spans become lines and columns only here.
 
 /// Printed under every report (README, "Caution").
@@ -7,6 +8,7 @@ pub const CAUTION: &str = "Caution: results hold for linear lumped models only; 
 pub mod human;
 pub mod json;
 pub mod modes;
+pub mod plot;
 
 use sprung_engine::{Diagnostic, Severity};
 use sprung_syntax::{Encoding, LineIndex, Span};
