@@ -515,9 +515,12 @@ impl Search<'_> {
             // would not change anything useful.
             return None;
         }
-        let steps = ((hi / lo).log10() * PER_DECADE).ceil() as i32;
+        // Capped: a system whose coordinates differ by hundreds of decades still scans a
+        // bounded grid (coarser then).
+        let steps = ((hi / lo).log10() * PER_DECADE).ceil().clamp(1.0, 600.0) as i32;
+        let per_decade = f64::from(steps) / (hi / lo).log10();
         let grid: Vec<f64> = (0..=steps)
-            .map(|i| lo * 10f64.powf(f64::from(i) / PER_DECADE))
+            .map(|i| lo * 10f64.powf(f64::from(i) / per_decade))
             .collect();
         let mut order: Vec<usize> = (0..grid.len()).collect();
         let distance = |c: f64| (c / start).ln().abs();
@@ -543,8 +546,13 @@ impl Search<'_> {
                 .unwrap_or(start)
         };
         let (mut fail, mut pass) = (q, p);
-        while (pass / fail).ln().abs() > NARROW {
-            let mid = (fail * pass).sqrt();
+        // The geometric mean through logarithms cannot overflow; the cap is a guard only
+        // (from one scan step to NARROW takes about 35 halvings).
+        for _ in 0..100 {
+            if (pass.ln() - fail.ln()).abs() <= NARROW {
+                break;
+            }
+            let mid = ((fail.ln() + pass.ln()) / 2.0).exp();
             if self.passes(req, mid) {
                 pass = mid;
             } else {
