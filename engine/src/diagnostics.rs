@@ -8,6 +8,8 @@
 use serde::Serialize;
 use sprung_syntax::Span;
 
+use crate::dim::Dim;
+
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Severity {
@@ -34,6 +36,15 @@ pub struct Label {
     pub message: String,
 }
 
+/// What a place in the model expected, as data for quick fixes (so that no tool reads it out of
+/// the message): the dimension, and the SI spelling of a unit to write there (`N*m/rad` for a
+/// torsional spring, `N*m` for a torque; the two share a dimension).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct ExpectedUnit {
+    pub dim: Dim,
+    pub unit: &'static str,
+}
+
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Diagnostic {
     pub code: &'static str,
@@ -43,6 +54,9 @@ pub struct Diagnostic {
     pub message: String,
     pub help: Option<String>,
     pub labels: Vec<Label>,
+    /// For a value of the wrong dimension: what its place expects. Not part of any report.
+    #[serde(skip)]
+    pub expected_unit: Option<ExpectedUnit>,
 }
 
 impl Diagnostic {
@@ -55,7 +69,14 @@ impl Diagnostic {
             message: message.into(),
             help: None,
             labels: Vec::new(),
+            expected_unit: None,
         }
+    }
+
+    /// Records what the diagnostic's span was expected to be (see [`ExpectedUnit`]).
+    pub fn with_expected_unit(mut self, dim: Dim, unit: &'static str) -> Self {
+        self.expected_unit = Some(ExpectedUnit { dim, unit });
+        self
     }
 
     pub fn with_help(mut self, help: impl Into<String>) -> Self {

@@ -541,3 +541,330 @@ async fn quick_fixes_for_pounds_units_and_names() {
         )]
     );
 }
+
+/// Every code action over `range` (`(line, col)` pairs, UTF-16), as the whole answer.
+async fn actions_in(c: &mut Client, from: (u32, u32), to: (u32, u32)) -> Vec<Value> {
+    let a = c
+        .request(
+            "textDocument/codeAction",
+            json!({ "textDocument": { "uri": URI }, "range": {
+                "start": { "line": from.0, "character": from.1 },
+                "end": { "line": to.0, "character": to.1 } },
+                "context": { "diagnostics": [] } }),
+        )
+        .await
+        .unwrap();
+    a.as_array().cloned().unwrap_or_default()
+}
+
+/// The byte offset of a protocol position in `text` (UTF-16 columns).
+fn byte_offset(text: &str, p: &Value) -> usize {
+    let (line, col) = (
+        p["line"].as_u64().unwrap(),
+        p["character"].as_u64().unwrap(),
+    );
+    let start: usize = text
+        .split_inclusive('\n')
+        .take(line as usize)
+        .map(str::len)
+        .sum();
+    let mut units = 0u64;
+    for (i, ch) in text[start..].char_indices() {
+        if units >= col || ch == '\n' {
+            return start + i;
+        }
+        units += ch.len_utf16() as u64;
+    }
+    text.len()
+}
+
+/// `text` with one action's edits applied (they never overlap; applied back to front).
+fn apply(text: &str, action: &Value) -> String {
+    let mut edits: Vec<(usize, usize, String)> = action["edit"]["changes"][URI]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|e| {
+            (
+                byte_offset(text, &e["range"]["start"]),
+                byte_offset(text, &e["range"]["end"]),
+                e["newText"].as_str().unwrap().to_string(),
+            )
+        })
+        .collect();
+    edits.sort_by_key(|e| std::cmp::Reverse(e.0));
+    let mut out = text.to_string();
+    for (a, b, t) in edits {
+        out.replace_range(a..b, &t);
+    }
+    out
+}
+
+/// One line per action (title and kind), then one per edit (range and new text, `\n` shown).
+fn render_actions(actions: &[Value]) -> String {
+    let mut out = String::new();
+    for a in actions {
+        out.push_str(&format!(
+            "{} [{}]\n",
+            a["title"].as_str().unwrap_or("?"),
+            a["kind"].as_str().unwrap_or("?")
+        ));
+        for e in a["edit"]["changes"][URI].as_array().into_iter().flatten() {
+            out.push_str(&format!(
+                "  {} {:?}\n",
+                range(&e["range"]),
+                e["newText"].as_str().unwrap_or("")
+            ));
+        }
+    }
+    out
+}
+
+/// Checks and analyzes a text with the engine, as the server does.
+fn analyzed(text: &str) -> (sprung_engine::Checked, sprung_engine::analysis::Analysis) {
+    let checked = sprung_engine::check(text);
+    let analysis = sprung_engine::analysis::analyze(&checked, &Default::default());
+    (checked, analysis)
+}
+
+const BARE: &str = "system skid {
+  mass motor = 2 lbm
+  mass frame = 3 lbm
+  mass pump = 40
+  spring k between motor and ground = 5000
+  spring k2 between frame and ground = 40 kN/m
+  spring k3 between pump and ground = 40 kN/m
+  damper d between pump and ground = 3 * 2
+  require frequency of mode 1 > 5
+}
+system drive {
+  inertia rotor = (0.5)
+  spring shaft between rotor and ground = -300
+  force f on rotor = 1 N at 3 Hz
+}
+";
+
+#[tokio::test]
+async fn add_the_expected_unit_to_a_bare_number() {
+    let mut c = Client::utf16().await;
+    c.open(URI, BARE).await;
+    let mut all = Vec::new();
+    let mut out = String::new();
+    for line in 0..14 {
+        let got: Vec<Value> = actions_in(&mut c, (line, 0), (line, 200))
+            .await
+            .into_iter()
+            .filter(|a| a["title"].as_str().unwrap_or("").starts_with("Add unit"))
+            .collect();
+        if !got.is_empty() {
+            out.push_str(&format!("line {line}\n{}", render_actions(&got)));
+        }
+        all.extend(got);
+    }
+    expect_file("actions_add_unit", &out);
+    // The file's own unit wins (`lbm`, `kN/m`); a frequency gets `Hz`; `3 * 2` (a scale
+    // factor times a number) gets nothing; a torsional spring gets `N*m/rad`, not `N*m`.
+    assert!(out.contains("Add unit `lbm`"), "{out}");
+    assert!(out.contains("Add unit `kN/m`"), "{out}");
+    assert!(out.contains("Add unit `Hz`"), "{out}");
+    assert!(out.contains("Add unit `kg*m^2`"), "{out}");
+    assert!(out.contains("Add unit `N*m/rad`"), "{out}");
+    assert!(!out.contains("line 7"), "{out}");
+    // Applying each fix removes its diagnostic: only the damper's error is left.
+    let mut text = BARE.to_string();
+    for a in all.iter().rev() {
+        text = apply(&text, a);
+    }
+    assert!(text.contains("mass pump = 40 lbm"), "{text}");
+    assert!(text.contains("rotor = (0.5 kg*m^2)"), "{text}");
+    assert!(text.contains("= -300 N*m/rad"), "{text}");
+    let (checked, _) = analyzed(&text);
+    let errors: Vec<_> = checked
+        .diagnostics
+        .iter()
+        .filter(|d| d.is_error())
+        .collect();
+    assert_eq!(errors.len(), 2, "{errors:#?}");
+    assert!(
+        errors[0].message.contains("translational damper"),
+        "{errors:#?}"
+    );
+    // The torque on an inertia is the other error, untouched.
+    assert!(errors[1].message.contains("cannot act on"), "{errors:#?}");
+}
+
+/// A fan skid on rubber mounts: a mass, springs and dampers all toleranced. Hand computation
+/// (closed form for one mass, common practice: ζ = c / (2√(k m))): the worst corner for
+/// `damping >= 0.05` is the heaviest skid on the stiffest mounts, m = 126 kg, k = 207 kN/m,
+/// so c_critical = 2√(207000 · 126) = 10214.1 N·s/m and 5% of it is 510.71 N·s/m. `pad`
+/// follows the corner (1% of critical, 102.14 N·s/m); `loss` is at its low end (−10%).
+/// Sizing `loss`: 0.9 c + 102.14 ≥ 510.71, c ≥ 453.97 → 455 after the margin and rounding
+/// up. Sizing `pad` (written as a plain value, so it no longer follows the corner):
+/// 180 + c ≥ 510.71, c ≥ 330.71 → 332.
+const FAN: &str = "## Fan skid on four rubber mounts.
+system fan \"Fan skid\" {
+  mass skid = 120 kg ± 5%
+  spring mounts between skid and ground = 4 * 45 kN/m ± 15%
+  damper loss between skid and ground = 200 N*s/m ± 10%
+  damper pad between skid and ground = 0.01 * 2 * sqrt(mounts * skid)
+  require damping >= 0.05
+  require regime is not underdamped
+}
+system twins {
+  mass a = 1 kg
+  mass b = 1 kg
+  spring ka between a and ground = 1 kN/m
+  spring kb between b and ground = 1 kN/m
+  spring kc between a and b = 500 N/m
+  damper across between a and b = 1 N*s/m
+  damper below between a and ground = 1 N*s/m
+  require damping of mode 1 >= 0.05
+}
+";
+
+#[tokio::test]
+async fn size_a_damper_for_a_failed_damping_requirement() {
+    let mut c = Client::utf16().await;
+    c.open(URI, FAN).await;
+    let damping = actions_in(&mut c, (6, 0), (6, 200)).await;
+    let regime = actions_in(&mut c, (7, 0), (7, 200)).await;
+    let twins = actions_in(&mut c, (17, 0), (17, 200)).await;
+    let out = format!(
+        "damping\n{}regime\n{}twins\n{}",
+        render_actions(&damping),
+        render_actions(&regime),
+        render_actions(&twins)
+    );
+    expect_file("actions_size_damper", &out);
+    let titles: Vec<&str> = damping
+        .iter()
+        .map(|a| a["title"].as_str().unwrap())
+        .collect();
+    assert_eq!(
+        titles,
+        [
+            "Set damper `loss` to 455 N*s/m (ζ ≥ 0.05 at worst corner)",
+            "Set damper `pad` to 332 N*s/m (ζ ≥ 0.05 at worst corner)",
+        ]
+    );
+    // Each edit makes the requirement pass in the real analysis; `loss` keeps its ± 10%.
+    for a in &damping {
+        let text = apply(FAN, a);
+        let (checked, analysis) = analyzed(&text);
+        assert!(!checked.has_errors(), "{text}");
+        assert!(analysis.systems[0].verdicts[0].passed(), "{text}");
+    }
+    assert!(apply(FAN, &damping[0]).contains("= 455 N*s/m ± 10%"));
+    assert!(apply(FAN, &damping[1]).contains("and ground = 332 N*s/m\n"));
+    // Not underdamped needs ζ ≥ 1 at the worst corner: far more, and it passes too.
+    assert_eq!(regime.len(), 2, "{regime:#?}");
+    for a in &regime {
+        let (_, analysis) = analyzed(&apply(FAN, a));
+        assert!(analysis.systems[0].verdicts[1].passed());
+    }
+    // Mode 1 of the twins moves both masses together: `across` cannot reach it, `below` can.
+    // Hand computation (modal damping of a mass-normalised shape [1, 1]/√2, ω² = 1000):
+    // ζ = (c/2) / (2√1000), so c = 0.05 · 4√1000 = 6.325 N·s/m if the damping were
+    // classical; `across` couples the modes a little, so the engine needs slightly more.
+    let titles: Vec<&str> = twins.iter().map(|a| a["title"].as_str().unwrap()).collect();
+    assert_eq!(titles.len(), 1, "{titles:?}");
+    assert!(
+        titles[0].starts_with("Set damper `below` to "),
+        "{titles:?}"
+    );
+    let value: f64 = titles[0]
+        .trim_start_matches("Set damper `below` to ")
+        .split(' ')
+        .next()
+        .unwrap()
+        .parse()
+        .unwrap();
+    assert!((6.325..6.40).contains(&value), "{value}");
+    let (_, analysis) = analyzed(&apply(FAN, &twins[0]));
+    assert!(analysis.systems[1].verdicts[0].passed());
+}
+
+const REPEATED: &str = "let stiffness = 3 kN/m
+system centrifuge {
+  ## The head.
+  mass head = 6.2 kg
+  mass base = 3.4 kg
+  spring column between head and base = 50 kN/m
+  spring feet between base and ground = 50000 N/m ± 15%
+  damper a1 between head and base = 0.02 * 2 * sqrt(column * head)
+  damper a2 between base and ground = 0.03 * 2 * sqrt(column * head) + 1 N*s/m
+  force f on head = 50 N at 30 Hz
+  require frequency of mode 1 > 5 Hz
+}
+";
+
+/// The SI value of every mass, element and requirement limit of the first system.
+fn si_values(text: &str) -> Vec<(String, f64)> {
+    let (checked, _) = analyzed(text);
+    assert!(!checked.has_errors(), "{:#?}", checked.diagnostics);
+    let sys = &checked.model.systems[0];
+    sys.dofs
+        .iter()
+        .map(|d| (d.name.clone(), d.value.nominal))
+        .chain(
+            sys.elements
+                .iter()
+                .map(|e| (e.name.clone(), e.value.nominal)),
+        )
+        .collect()
+}
+
+#[tokio::test]
+async fn extract_a_repeated_value_into_a_let() {
+    let mut c = Client::utf16().await;
+    c.open(URI, REPEATED).await;
+    // On `50 kN/m`: `50000 N/m` is the same SI value, so both go; `stiffness` is taken.
+    let on_literal: Vec<Value> = actions_in(&mut c, (5, 42), (5, 42))
+        .await
+        .into_iter()
+        .filter(|a| a["kind"] == "refactor.extract")
+        .collect();
+    // A selection of `sqrt(column * head)`, written twice.
+    let on_selection: Vec<Value> = actions_in(&mut c, (7, 47), (7, 66))
+        .await
+        .into_iter()
+        .filter(|a| a["kind"] == "refactor.extract")
+        .collect();
+    // `50 N` is written once: nothing to extract.
+    let once = actions_in(&mut c, (9, 21), (9, 21)).await;
+    let out = format!(
+        "literal\n{}selection\n{}",
+        render_actions(&on_literal),
+        render_actions(&on_selection)
+    );
+    expect_file("actions_extract_let", &out);
+    assert_eq!(on_literal.len(), 1, "{out}");
+    assert_eq!(
+        on_literal[0]["title"],
+        "Extract `50 kN/m` into `let stiffness_2`"
+    );
+    assert_eq!(on_selection.len(), 1, "{out}");
+    assert_eq!(
+        on_selection[0]["title"],
+        "Extract `sqrt(column * head)` into `let shared`"
+    );
+    assert!(
+        once.iter().all(|a| a["kind"] != "refactor.extract"),
+        "{once:#?}"
+    );
+    // The edited texts check with the same SI values (the engine run again on them).
+    let before = si_values(REPEATED);
+    for a in [&on_literal[0], &on_selection[0]] {
+        let text = apply(REPEATED, a);
+        assert_eq!(si_values(&text), before, "{text}");
+    }
+    let text = apply(REPEATED, &on_literal[0]);
+    assert!(
+        text.contains("system centrifuge {\n  let stiffness_2 = 50 kN/m\n  ## The head.\n"),
+        "{text}"
+    );
+    assert!(
+        text.contains("feet between base and ground = stiffness_2 ± 15%"),
+        "{text}"
+    );
+}

@@ -674,21 +674,22 @@ impl<'t> Checker<'t, '_> {
                     let owner = format!("initial {}", sm.dofs[i].name);
                     let (xd, vd) = if rot {
                         (
-                            (Dim::NONE, "an angle (rad)"),
-                            (Dim::FREQUENCY, "an angular velocity (rad/s)"),
+                            (Dim::NONE, "an angle (rad)", "rad"),
+                            (Dim::FREQUENCY, "an angular velocity (rad/s)", "rad/s"),
                         )
                     } else {
                         (
-                            (Dim::LENGTH, "a displacement (m)"),
-                            (Dim::VELOCITY, "a velocity (m/s)"),
+                            (Dim::LENGTH, "a displacement (m)", "m"),
+                            (Dim::VELOCITY, "a velocity (m/s)", "m/s"),
                         )
                     };
                     let x = self.compiler().value(displacement, &owner, &scope);
-                    let x =
-                        x.filter(|q| self.expect_dim_as(*q, xd.0, displacement.expr.span, xd.1));
+                    let x = x.filter(|q| {
+                        self.expect_dim_as(*q, xd.0, displacement.expr.span, xd.1, xd.2)
+                    });
                     let v = velocity.as_ref().map(|v| {
                         let q = self.compiler().value(v, &owner, &scope);
-                        q.filter(|q| self.expect_dim_as(*q, vd.0, v.expr.span, vd.1))
+                        q.filter(|q| self.expect_dim_as(*q, vd.0, v.expr.span, vd.1, vd.2))
                     });
                     match (x, v) {
                         (Some(x), None) => sm.initials.push(Initial {
@@ -726,6 +727,7 @@ impl<'t> Checker<'t, '_> {
                             Dim::ACCELERATION,
                             value.expr.span,
                             "an acceleration (m/s^2)",
+                            "m/s^2",
                         )
                     }) {
                         Some(q) => sm.gravity = Some(q),
@@ -883,11 +885,11 @@ impl<'t> Checker<'t, '_> {
         let amp_span = amp_value.expr.span;
         let mut motion = None;
         let amp = match (kind, impulse) {
-            (K::Force, false) => amp.filter(|q| self.expect_dim_as(*q, Dim::FORCE, amp_span, "a force (N)")),
-            (K::Force, true) => amp.filter(|q| self.expect_dim_as(*q, Dim::IMPULSE, amp_span, "an impulse (N*s)")),
-            (K::Torque, false) => amp.filter(|q| self.expect_dim_as(*q, Dim::TORQUE, amp_span, "a torque (N*m)")),
+            (K::Force, false) => amp.filter(|q| self.expect_dim_as(*q, Dim::FORCE, amp_span, "a force (N)", "N")),
+            (K::Force, true) => amp.filter(|q| self.expect_dim_as(*q, Dim::IMPULSE, amp_span, "an impulse (N*s)", "N*s")),
+            (K::Torque, false) => amp.filter(|q| self.expect_dim_as(*q, Dim::TORQUE, amp_span, "a torque (N*m)", "N*m")),
             (K::Torque, true) => {
-                amp.filter(|q| self.expect_dim_as(*q, Dim::ANGULAR_IMPULSE, amp_span, "an angular impulse (N*m*s)"))
+                amp.filter(|q| self.expect_dim_as(*q, Dim::ANGULAR_IMPULSE, amp_span, "an angular impulse (N*m*s)", "N*m*s"))
             }
             (K::Motion, true) => {
                 self.error(
@@ -929,6 +931,7 @@ impl<'t> Checker<'t, '_> {
                         Dim::FREQUENCY,
                         frequency.expr.span,
                         "a frequency (Hz, rpm or 1/s)",
+                        "Hz",
                     )
                 });
                 if let Some(f) = f
@@ -954,10 +957,17 @@ impl<'t> Checker<'t, '_> {
                         Dim::FREQUENCY,
                         from.span,
                         "a frequency (Hz, rpm or 1/s)",
+                        "Hz",
                     )
                 });
                 let hi = hi.filter(|q| {
-                    self.expect_dim_as(*q, Dim::FREQUENCY, to.span, "a frequency (Hz, rpm or 1/s)")
+                    self.expect_dim_as(
+                        *q,
+                        Dim::FREQUENCY,
+                        to.span,
+                        "a frequency (Hz, rpm or 1/s)",
+                        "Hz",
+                    )
                 });
                 let (lo, hi) = (lo?, hi?);
                 if !(lo.nominal > 0.0 && lo.nominal < hi.nominal) {
@@ -1122,7 +1132,7 @@ impl<'t> Checker<'t, '_> {
                 dof = Some(dof_of(self, of)?);
                 if let Some(w) = w {
                     let q = self.compiler().expr(w, scope)?;
-                    if !self.expect_dim_as(q, Dim::NONE, w.span, "a percentage") {
+                    if !self.expect_dim_as(q, Dim::NONE, w.span, "a percentage", "%") {
                         return None;
                     }
                     if !(q.nominal > 0.0 && q.nominal < 1.0) {
@@ -1241,14 +1251,18 @@ impl<'t> Checker<'t, '_> {
     ) -> Option<Quantity> {
         let q = self.compiler().expr(e, scope)?;
         if q.dim != dim {
-            self.error(Diagnostic::new(
+            let mut d = Diagnostic::new(
                 Code::RequirementUnit,
                 e.span,
                 format!(
                     "`{subject}` is compared with {dim_word}, but this limit is {}",
                     q.dim.describe()
                 ),
-            ));
+            );
+            if let Some(unit) = si_spelling(dim) {
+                d = d.with_expected_unit(dim, unit);
+            }
+            self.error(d);
             return None;
         }
         Some(q)
@@ -1357,7 +1371,7 @@ impl<'t> Checker<'t, '_> {
         if dims.contains(&q.dim) {
             return true;
         }
-        self.error(Diagnostic::new(
+        let mut d = Diagnostic::new(
             Code::WrongQuantity,
             span,
             format!(
@@ -1365,19 +1379,35 @@ impl<'t> Checker<'t, '_> {
                 dims[0].describe(),
                 q.dim.describe()
             ),
-        ));
+        );
+        if let Some(unit) = si_spelling(dims[0]) {
+            d = d.with_expected_unit(dims[0], unit);
+        }
+        self.error(d);
         false
     }
 
-    fn expect_dim_as(&mut self, q: Quantity, dim: Dim, span: Span, expected: &str) -> bool {
+    /// `unit` is the SI spelling to suggest for the place (carried as data on the diagnostic).
+    fn expect_dim_as(
+        &mut self,
+        q: Quantity,
+        dim: Dim,
+        span: Span,
+        expected: &str,
+        unit: &'static str,
+    ) -> bool {
         if q.dim == dim {
             return true;
         }
-        self.error(Diagnostic::new(
+        let mut d = Diagnostic::new(
             Code::WrongQuantity,
             span,
             format!("expected {expected}, found {}", q.dim.describe()),
-        ));
+        );
+        if !dim.is_none() {
+            d = d.with_expected_unit(dim, unit);
+        }
+        self.error(d);
         false
     }
 
@@ -1410,7 +1440,8 @@ impl<'t> Checker<'t, '_> {
                 "expected {kind} ({unit}) for {word}, found {}",
                 q.dim.describe()
             ),
-        );
+        )
+        .with_expected_unit(dim, unit);
         let other_kind = if rotational {
             Dim::new(dim.m, dim.l - 2, dim.t)
         } else {
@@ -1447,6 +1478,19 @@ impl<'t> Checker<'t, '_> {
             ),
         ));
     }
+}
+
+/// The SI unit to suggest where a value of `dim` is expected and the place says no more
+/// (frequencies in Hz); `None` for a plain number.
+fn si_spelling(dim: Dim) -> Option<&'static str> {
+    Some(match dim {
+        Dim::MASS => "kg",
+        Dim::INERTIA => "kg*m^2",
+        Dim::LENGTH => "m",
+        Dim::TIME => "s",
+        Dim::FREQUENCY => "Hz",
+        _ => return None,
+    })
 }
 
 fn kind_word(k: NodeKind) -> &'static str {
