@@ -739,6 +739,19 @@ pub struct Separation {
 /// `separation from DRIVE`: min over the non-rigid modes and over the drive's frequencies of
 /// |ωn − ω| / ω (closed form over a band).
 pub fn separation(drive: &DriveInput, modal: &ModalResult) -> Result<Separation, ResponseError> {
+    separations(drive, modal)?
+        .into_iter()
+        .reduce(|best, s| if s.value < best.value { s } else { best })
+        .ok_or(ResponseError::NoElasticMode)
+}
+
+/// The separation of a drive from each non-rigid mode, in mode order: |ωn − ω| / ω at the
+/// drive's frequency, or over its band [a, b] 0 when ωn is inside, (a − ωn)/a below and
+/// (ωn − b)/b above.
+pub fn separations(
+    drive: &DriveInput,
+    modal: &ModalResult,
+) -> Result<Vec<Separation>, ResponseError> {
     let (lo, hi) = match drive.waveform {
         Waveform::Harmonic { omega } => (omega, omega),
         Waveform::Band { lo, hi } => (lo, hi),
@@ -749,28 +762,26 @@ pub fn separation(drive: &DriveInput, modal: &ModalResult) -> Result<Separation,
     if !(lo > 0.0 && lo <= hi && hi.is_finite()) {
         return Err(ResponseError::BadBand { lo, hi });
     }
-    let mut best: Option<Separation> = None;
-    for mode in &modal.modes {
-        if mode.regime == ModeRegime::RigidBody {
-            continue;
-        }
-        let wn = mode.natural_frequency;
-        let (value, omega) = if wn < lo {
-            ((lo - wn) / lo, lo)
-        } else if wn > hi {
-            ((wn - hi) / hi, hi)
-        } else {
-            (0.0, wn)
-        };
-        if best.is_none_or(|b| value < b.value) {
-            best = Some(Separation {
+    Ok(modal
+        .modes
+        .iter()
+        .filter(|mode| mode.regime != ModeRegime::RigidBody)
+        .map(|mode| {
+            let wn = mode.natural_frequency;
+            let (value, omega) = if wn < lo {
+                ((lo - wn) / lo, lo)
+            } else if wn > hi {
+                ((wn - hi) / hi, hi)
+            } else {
+                (0.0, wn)
+            };
+            Separation {
                 value,
                 mode: mode.index,
                 omega,
-            });
-        }
-    }
-    best.ok_or(ResponseError::NoElasticMode)
+            }
+        })
+        .collect())
 }
 
 /// The frequencies (rad/s) near which a response peak can hide: each natural frequency ωn and,

@@ -4,6 +4,7 @@
 
 use sprung_engine::Checked;
 use sprung_engine::analysis::{self, Analysis, Config};
+use sprung_engine::drive_report::{self, DriveReport};
 use sprung_engine::model::SystemModel;
 use sprung_syntax::{Encoding, LineIndex, Span};
 use tower_lsp_server::ls_types::{Position, Range};
@@ -20,6 +21,8 @@ pub struct Snapshot {
     pub index: LineIndex,
     pub checked: Checked,
     pub analysis: Analysis,
+    /// What each drive does, per system (parallel to the model's systems), for hints and hovers.
+    pub drives: Vec<Vec<DriveReport>>,
     pub symbols: Index,
     pub encoding: Encoding,
 }
@@ -39,6 +42,10 @@ impl Snapshot {
             analysis::analyze(&checked, &Config::default())
         }))
         .unwrap_or_default();
+        let drives = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+            drive_report::reports(&checked.model, &analysis, &drive_report::Limits::default())
+        }))
+        .unwrap_or_default();
         let symbols = Index::build(&checked.parse.file);
         let index = LineIndex::new(&text);
         Snapshot {
@@ -48,6 +55,7 @@ impl Snapshot {
             index,
             checked,
             analysis,
+            drives,
             symbols,
             encoding,
         }
