@@ -343,3 +343,67 @@ fn transient_report(
         duration: t.duration(),
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::{self, Config};
+
+    fn chain(n: usize, drive: &str) -> String {
+        let mut t = String::from("system chain {\n");
+        for i in 0..n {
+            t.push_str(&format!("  mass m{i} = 1 kg\n"));
+            let prev = if i == 0 {
+                "ground".to_string()
+            } else {
+                format!("m{}", i - 1)
+            };
+            t.push_str(&format!("  spring k{i} between m{i} and {prev} = 1 kN/m\n"));
+            t.push_str(&format!(
+                "  damper c{i} between m{i} and {prev} = 2 N*s/m\n"
+            ));
+        }
+        t.push_str(&format!("  force f on m{} = {drive}\n}}\n", n - 1));
+        t
+    }
+
+    fn first(text: &str, limits: &Limits) -> DriveReport {
+        let checked = crate::check(text);
+        assert!(!checked.has_errors(), "{:?}", checked.diagnostics);
+        let a = analysis::analyze(&checked, &Config::default());
+        reports(&checked.model, &a, limits)[0][0].clone()
+    }
+
+    #[test]
+    fn the_work_budget_skips_what_would_slow_the_editor() {
+        // A 100-mass chain: one solve is cheap, a band search of hundreds of solves is not.
+        let at = first(&chain(100, "1 N at 3 Hz"), &Limits::default());
+        assert!(
+            matches!(at.result, Ok(DriveResponse::Harmonic(_))),
+            "{at:?}"
+        );
+        let band = first(&chain(100, "1 N at 1 Hz .. 5 Hz"), &Limits::default());
+        assert_eq!(band.result.unwrap_err(), Skipped::OverBudget { dofs: 100 });
+        let none = first(&chain(2, "1 N at 3 Hz"), &Limits { work: 0.0 });
+        assert_eq!(none.result.unwrap_err(), Skipped::OverBudget { dofs: 2 });
+    }
+
+    #[test]
+    fn one_mass_at_its_drive_frequency_is_the_closed_form() {
+        // X = (F/k)/√((1 − r²)² + (2ζr)²) (standard vibration texts, from memory), with
+        // m = 1 kg, k = 1 kN/m, c = 2 N·s/m: ωn = 31.62 rad/s, ζ = c/(2√(km)) = 0.03162.
+        let rep = first(&chain(1, "1 N at 4 Hz"), &Limits::default());
+        let Ok(DriveResponse::Harmonic(h)) = rep.result else {
+            panic!("{rep:?}")
+        };
+        let wn = 1000f64.sqrt();
+        let z = 2.0 / (2.0 * wn);
+        let r = 4.0 * std::f64::consts::TAU / wn;
+        let x = 1e-3 / ((1.0 - r * r).powi(2) + (2.0 * z * r).powi(2)).sqrt();
+        assert!((h.response.x[0].norm() - x).abs() < 1e-12 * x);
+        assert_eq!(h.dof, 0);
+        // |fn − f| / f = |5.033 − 4| / 4.
+        let s = h.nearest().unwrap();
+        assert!((s.value - (wn / std::f64::consts::TAU - 4.0).abs() / 4.0).abs() < 1e-12);
+    }
+}
