@@ -280,6 +280,7 @@ mod tests {
         let model = Model {
             formulas: f,
             params: vec![],
+            globals: vec![],
             systems: vec![],
         };
         let mats = assemble(&model, &sys, &[]).unwrap();
@@ -309,6 +310,7 @@ mod tests {
         let model = Model {
             formulas: f,
             params: vec![],
+            globals: vec![],
             systems: vec![],
         };
         let mut asm = Assembler::new(&model, &sys, Limits::default()).unwrap();
@@ -325,6 +327,7 @@ mod tests {
         let model = Model {
             formulas: f,
             params: vec![],
+            globals: vec![],
             systems: vec![],
         };
         assert_eq!(
@@ -348,6 +351,7 @@ mod tests {
         let model = Model {
             formulas: f,
             params: vec![],
+            globals: vec![],
             systems: vec![],
         };
         assert_eq!(

@@ -11,6 +11,7 @@ pub mod check;
 pub mod corners;
 pub mod diagnostics;
 pub mod dim;
+pub mod drive_report;
 pub mod eigen;
 pub mod fixes;
 pub mod formula;

@@ -16,7 +16,28 @@ pub struct Model {
     pub formulas: Formulas,
     /// The tolerance parameters of the whole file (top-level and system ones).
     pub params: Vec<Param>,
+    /// The top-level lets that checked, in file order (language.md §2: visible in every
+    /// system). Each is evaluated once, at file level: it can depend only on other top-level
+    /// lets.
+    pub globals: Vec<GlobalLet>,
     pub systems: Vec<SystemModel>,
+}
+
+/// A top-level `let` as checked, for hovers and hints.
+#[derive(Clone, Debug)]
+pub struct GlobalLet {
+    pub name: String,
+    pub name_span: Span,
+    /// The whole item.
+    pub span: Span,
+    /// In SI, with its dimension.
+    pub value: Quantity,
+    /// Its own tolerance (`± 15%`), as an index into [`Model::params`].
+    pub param: Option<usize>,
+    /// The systems (indices into [`Model::systems`]) whose values depend on it, directly or
+    /// through other lets.
+    pub used_by: Vec<usize>,
+    pub doc: Option<String>,
 }
 
 /// One toleranced value: a deviation that is 0 at nominal and `low`/`high` at the corners.

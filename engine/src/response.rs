@@ -17,6 +17,21 @@
 //!   and for elements of the other kind). The total force into ground sums the grounded
 //!   elements of the drive's kind (the driven coordinate's kind for a force or torque).
 //!
+//! **Singularity.** The solve is of the symmetrically scaled matrix S D S with
+//! S = diag(1/√(|Kᵢᵢ| + ω²Mᵢᵢ + ω|Cᵢᵢ|)), so that its pivots compare with 1 whatever the units
+//! and however different the masses. When the smallest pivot of the LU (partial pivoting) is
+//! below [`PIVOT_FLAG`], the undamped modes K φ = ω² M φ (mass-normalised) are computed and
+//! every mode r that no damper moves (‖C φᵣ‖ ≤ 1e-9 · 2ωᵣ‖M φᵣ‖) and whose ωᵣ² is within
+//! 1e-6 of ω² is taken out of the solve: such a mode is decoupled from every other (C φᵣ = 0
+//! and φⱼᵀ K φᵣ = φⱼᵀ M φᵣ = 0), so its modal coordinate is exactly qᵣ = φᵣᵀF / (ωᵣ² − ω²) and
+//! the rest solves D' X' = F − M φᵣ (φᵣᵀF), with D' = D + ωᵣ² (M φᵣ)(M φᵣ)ᵀ, which is
+//! regular and gives the X' with no φᵣ content. Exactly at ωᵣ (|ωᵣ² − ω²| ≤ 1e-9 ωᵣ²) the
+//! response is finite only when F does not excite the mode (|φᵣᵀF| ≤ 1e-9 ‖φᵣ‖‖F‖, the cosine
+//! of the angle between them): then qᵣ = 0, the limit of the response as ω → ωᵣ (an unexcited
+//! undamped mode stays at rest in the steady state); otherwise the response is infinite and
+//! the result is [`ResponseError::Singular`]. A matrix still near-singular after that (a
+//! negative damper, say) is also `Singular`, never a huge number.
+//!
 //! **Transmissibility** (§5): force drive: |total force into ground| / |applied amplitude|;
 //! motion drive: |X_A| / |Y| for a coordinate A, which may be left out only when exactly one
 //! coordinate is of the moved kind. **Amplitude of A**: |X_A| summed over the harmonic drives
@@ -438,17 +453,7 @@ pub fn harmonic(
             (y, y, f)
         }
     };
-    let w2 = omega * omega;
-    let dyn_stiffness = DMatrix::from_fn(n, n, |i, j| {
-        Complex64::new(mats.k[(i, j)] - w2 * mats.m[(i, j)], omega * mats.c[(i, j)])
-    });
-    let x = dyn_stiffness
-        .lu()
-        .solve(&f)
-        .ok_or(ResponseError::Singular { omega })?;
-    if x.iter().any(|z| !z.re.is_finite() || !z.im.is_finite()) {
-        return Err(ResponseError::Singular { omega });
-    }
+    let x = solve_dynamic(mats, omega, &f)?;
     let moved = |i: usize| match excitation {
         Excitation::Base { .. } if mats.dof_kinds[i] == kind => y,
         _ => Complex64::new(0.0, 0.0),
@@ -472,6 +477,122 @@ pub fn harmonic(
         link_forces,
         ground_force,
     })
+}
+
+/// Below this smallest pivot of the scaled dynamic stiffness (relative to its largest entry,
+/// about 1) the solve looks for undamped modes at the drive frequency.
+pub const PIVOT_FLAG: f64 = 1e-8;
+/// Below this smallest pivot a solve with no undamped mode to take out is singular.
+const PIVOT_SINGULAR: f64 = 1e-13;
+/// An undamped mode is taken out of the solve when |ωᵣ² − ω²| ≤ this × ωᵣ².
+const NEAR_MODE: f64 = 1e-6;
+/// At |ωᵣ² − ω²| ≤ this × ωᵣ² the drive is exactly at the mode.
+const AT_MODE: f64 = 1e-9;
+/// A mode is undamped when ‖C φ‖ ≤ this × 2ω‖M φ‖ (ζ below about this).
+const UNDAMPED: f64 = 1e-9;
+/// A load does not excite a mode when |φᵀF| ≤ this × ‖φ‖‖F‖.
+const ORTHOGONAL: f64 = 1e-9;
+
+/// X = (K − ω²M + iωC)⁻¹ F, with undamped modes at ω taken out (module documentation).
+fn solve_dynamic(
+    mats: &Matrices,
+    omega: f64,
+    f: &DVector<Complex64>,
+) -> Result<DVector<Complex64>, ResponseError> {
+    let n = mats.dofs();
+    if n == 0 {
+        return Ok(DVector::from_element(0, Complex64::new(0.0, 0.0)));
+    }
+    let w2 = omega * omega;
+    let dynamic = DMatrix::from_fn(n, n, |i, j| {
+        Complex64::new(mats.k[(i, j)] - w2 * mats.m[(i, j)], omega * mats.c[(i, j)])
+    });
+    let scale: Vec<f64> = (0..n)
+        .map(|i| {
+            let d = mats.k[(i, i)].abs() + w2 * mats.m[(i, i)].abs() + omega * mats.c[(i, i)].abs();
+            let s = 1.0 / d.sqrt();
+            if s.is_finite() { s } else { 1.0 }
+        })
+        .collect();
+    let (x, pivot) = scaled_solve(&dynamic, &scale, f);
+    if pivot > PIVOT_FLAG {
+        return x.ok_or(ResponseError::Singular { omega });
+    }
+    let und = crate::eigen::generalized_symmetric(&mats.k, &mats.m)
+        .map_err(|e| ResponseError::Modal(e.into()))?;
+    let f_norm = f.norm();
+    let mut deflated = dynamic;
+    let mut rest = f.clone();
+    let mut modal_part = DVector::from_element(n, Complex64::new(0.0, 0.0));
+    let mut any = false;
+    for (r, &w2r) in und.omega2.iter().enumerate() {
+        if w2r.is_nan() || w2r <= 0.0 || (w2r - w2).abs() > NEAR_MODE * w2r {
+            continue;
+        }
+        let phi = und.shapes.column(r).into_owned();
+        let m_phi = &mats.m * &phi;
+        if (&mats.c * &phi).norm() > UNDAMPED * 2.0 * w2r.sqrt() * m_phi.norm() {
+            continue;
+        }
+        any = true;
+        let mut load: Complex64 = phi.iter().zip(f.iter()).map(|(p, x)| *x * *p).sum();
+        if load.norm() <= ORTHOGONAL * phi.norm() * f_norm {
+            load = Complex64::new(0.0, 0.0);
+        }
+        let detuning = w2r - w2;
+        if detuning.abs() <= AT_MODE * w2r {
+            if load.norm() > 0.0 {
+                return Err(ResponseError::Singular { omega });
+            }
+        } else {
+            let q = load / detuning;
+            for i in 0..n {
+                modal_part[i] += q * phi[i];
+            }
+        }
+        for i in 0..n {
+            rest[i] -= load * m_phi[i];
+            for j in 0..n {
+                deflated[(i, j)] += Complex64::new(w2r * m_phi[i] * m_phi[j], 0.0);
+            }
+        }
+    }
+    let threshold = if any { PIVOT_FLAG } else { PIVOT_SINGULAR };
+    let (x, pivot) = if any {
+        scaled_solve(&deflated, &scale, &rest)
+    } else {
+        (x, pivot)
+    };
+    match x {
+        Some(x) if pivot > threshold => Ok(x + modal_part),
+        _ => Err(ResponseError::Singular { omega }),
+    }
+}
+
+/// Solves A X = F as (S A S) Y = S F, X = S Y, and returns the smallest pivot of the scaled
+/// LU relative to the scaled matrix's largest entry (0 when singular or not finite).
+fn scaled_solve(
+    a: &DMatrix<Complex64>,
+    scale: &[f64],
+    f: &DVector<Complex64>,
+) -> (Option<DVector<Complex64>>, f64) {
+    let n = a.nrows();
+    let scaled = DMatrix::from_fn(n, n, |i, j| a[(i, j)] * (scale[i] * scale[j]));
+    let largest = scaled.iter().fold(0.0_f64, |m, z| m.max(z.norm()));
+    let lu = scaled.lu();
+    let u = lu.u();
+    let smallest = (0..n).fold(f64::INFINITY, |m, i| m.min(u[(i, i)].norm()));
+    let pivot = if largest > 0.0 && smallest.is_finite() {
+        smallest / largest
+    } else {
+        0.0
+    };
+    let rhs = DVector::from_fn(n, |i, _| f[i] * scale[i]);
+    let x = lu
+        .solve(&rhs)
+        .map(|y| DVector::from_fn(n, |i, _| y[i] * scale[i]))
+        .filter(|x| x.iter().all(|z| z.re.is_finite() && z.im.is_finite()));
+    (x, if pivot.is_nan() { 0.0 } else { pivot })
 }
 
 /// k or iωc.
@@ -618,6 +739,19 @@ pub struct Separation {
 /// `separation from DRIVE`: min over the non-rigid modes and over the drive's frequencies of
 /// |ωn − ω| / ω (closed form over a band).
 pub fn separation(drive: &DriveInput, modal: &ModalResult) -> Result<Separation, ResponseError> {
+    separations(drive, modal)?
+        .into_iter()
+        .reduce(|best, s| if s.value < best.value { s } else { best })
+        .ok_or(ResponseError::NoElasticMode)
+}
+
+/// The separation of a drive from each non-rigid mode, in mode order: |ωn − ω| / ω at the
+/// drive's frequency, or over its band [a, b] 0 when ωn is inside, (a − ωn)/a below and
+/// (ωn − b)/b above.
+pub fn separations(
+    drive: &DriveInput,
+    modal: &ModalResult,
+) -> Result<Vec<Separation>, ResponseError> {
     let (lo, hi) = match drive.waveform {
         Waveform::Harmonic { omega } => (omega, omega),
         Waveform::Band { lo, hi } => (lo, hi),
@@ -628,28 +762,26 @@ pub fn separation(drive: &DriveInput, modal: &ModalResult) -> Result<Separation,
     if !(lo > 0.0 && lo <= hi && hi.is_finite()) {
         return Err(ResponseError::BadBand { lo, hi });
     }
-    let mut best: Option<Separation> = None;
-    for mode in &modal.modes {
-        if mode.regime == ModeRegime::RigidBody {
-            continue;
-        }
-        let wn = mode.natural_frequency;
-        let (value, omega) = if wn < lo {
-            ((lo - wn) / lo, lo)
-        } else if wn > hi {
-            ((wn - hi) / hi, hi)
-        } else {
-            (0.0, wn)
-        };
-        if best.is_none_or(|b| value < b.value) {
-            best = Some(Separation {
+    Ok(modal
+        .modes
+        .iter()
+        .filter(|mode| mode.regime != ModeRegime::RigidBody)
+        .map(|mode| {
+            let wn = mode.natural_frequency;
+            let (value, omega) = if wn < lo {
+                ((lo - wn) / lo, lo)
+            } else if wn > hi {
+                ((wn - hi) / hi, hi)
+            } else {
+                (0.0, wn)
+            };
+            Separation {
                 value,
                 mode: mode.index,
                 omega,
-            });
-        }
-    }
-    best.ok_or(ResponseError::NoElasticMode)
+            }
+        })
+        .collect())
 }
 
 /// The frequencies (rad/s) near which a response peak can hide: each natural frequency ωn and,
@@ -821,4 +953,125 @@ fn golden_max(
         }
     }
     Ok(best)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Two equal masses m, each on a spring k to ground, joined by a coupling spring kc, no
+    /// damping. Modes (closed form, standard vibration texts, from memory): in phase [1, 1] at
+    /// ω₁² = k/m, antisymmetric [1, −1] at ω₂² = (k + 2kc)/m.
+    fn symmetric_pair(m: f64, k: f64, kc: f64) -> (Matrices, Vec<GroundLink>) {
+        let mats = Matrices {
+            m: DMatrix::from_row_slice(2, 2, &[m, 0.0, 0.0, m]),
+            c: DMatrix::zeros(2, 2),
+            k: DMatrix::from_row_slice(2, 2, &[k + kc, -kc, -kc, k + kc]),
+            dof_kinds: vec![DofKind::Translational; 2],
+        };
+        let link = |element, dof| GroundLink {
+            element,
+            dof,
+            kind: LinkKind::Spring,
+            dof_kind: DofKind::Translational,
+            value: k,
+        };
+        (mats, vec![link(0, 0), link(1, 1)])
+    }
+
+    const BASE: Excitation = Excitation::Base {
+        kind: DofKind::Translational,
+        motion: MotionKind::Displacement,
+    };
+
+    #[test]
+    fn symmetric_drive_at_the_antisymmetric_mode_is_finite() {
+        let (m, k, kc) = (3.0, 12_000.0, 5_000.0);
+        let (mats, ground) = symmetric_pair(m, k, kc);
+        // The ground moves both outer springs alike: F = kY [1, 1], orthogonal to [1, −1].
+        // Both masses then move together as one, and the coupling spring never stretches:
+        // m ẍ + k x = k y, so X/Y = k / (k − mω²), at ω² = (k + 2kc)/m equal to −k/(2kc).
+        let omega = ((k + 2.0 * kc) / m).sqrt();
+        let y = 0.002;
+        let h = harmonic(&mats, &ground, BASE, y, omega).unwrap();
+        let expected = -k / (2.0 * kc) * y;
+        for i in 0..2 {
+            assert!(
+                (h.x[i].re - expected).abs() < 1e-9 * expected.abs() && h.x[i].im.abs() < 1e-12,
+                "x{i} = {} (expected {expected})",
+                h.x[i]
+            );
+        }
+        // The same value just beside the mode, where the plain solve is well conditioned: the
+        // response is continuous through the unexcited mode.
+        let near = harmonic(&mats, &ground, BASE, y, omega * (1.0 + 1e-5)).unwrap();
+        assert!((near.x[0].re - expected).abs() < 1e-3 * expected.abs());
+        // Force into ground: each outer spring carries k(X − Y).
+        let into_ground = 2.0 * k * (expected - y);
+        assert!((h.ground_force.re - into_ground).abs() < 1e-9 * into_ground.abs());
+    }
+
+    #[test]
+    fn a_load_that_excites_the_undamped_mode_at_its_frequency_is_singular() {
+        let (m, k, kc) = (3.0, 12_000.0, 5_000.0);
+        let (mats, ground) = symmetric_pair(m, k, kc);
+        let omega = ((k + 2.0 * kc) / m).sqrt();
+        // A force on one mass excites both modes; at ω₂ the response is unbounded.
+        let load = Excitation::Load { dof: 0 };
+        assert_eq!(
+            harmonic(&mats, &ground, load, 10.0, omega),
+            Err(ResponseError::Singular { omega })
+        );
+        // So is the in-phase mode under the symmetric ground motion.
+        let w1 = (k / m).sqrt();
+        assert_eq!(
+            harmonic(&mats, &ground, BASE, 0.001, w1),
+            Err(ResponseError::Singular { omega: w1 })
+        );
+    }
+
+    #[test]
+    fn close_to_an_excited_undamped_mode_the_value_is_the_closed_form() {
+        // One mass, no damper: X = (F/k) / (1 − r²) (closed form, standard vibration texts,
+        // from memory), exact even a hair away from resonance, where the plain LU pivot is tiny.
+        let mats = Matrices {
+            m: DMatrix::from_element(1, 1, 2.0),
+            c: DMatrix::zeros(1, 1),
+            k: DMatrix::from_element(1, 1, 800.0),
+            dof_kinds: vec![DofKind::Translational],
+        };
+        let wn = 20.0_f64;
+        for r in [1.0 + 1e-7, 1.0 - 3e-8, 0.5, 2.0] {
+            let h = harmonic(&mats, &[], Excitation::Load { dof: 0 }, 5.0, wn * r).unwrap();
+            let expected = 5.0 / 800.0 / (1.0 - r * r);
+            assert!(
+                (h.x[0].re - expected).abs() < 1e-6 * expected.abs(),
+                "r = {r}: {} vs {expected}",
+                h.x[0].re
+            );
+        }
+        assert!(harmonic(&mats, &[], Excitation::Load { dof: 0 }, 5.0, wn).is_err());
+    }
+
+    #[test]
+    fn a_damped_pair_at_the_same_frequency_is_solved_as_before() {
+        // With a damper on each mass both modes are damped: nothing is taken out, and the
+        // response at ω₂ under a force on one mass is the plain solve. In modal coordinates
+        // (mass-normalised φ = [1, ±1]/√(2m), proportional damping c/m):
+        // X = Σ φ φᵀF / (ωⱼ² − ω² + iω c/m).
+        let (m, k, kc, c) = (3.0, 12_000.0, 5_000.0, 4.0);
+        let (mut mats, ground) = symmetric_pair(m, k, kc);
+        mats.c = DMatrix::from_row_slice(2, 2, &[c, 0.0, 0.0, c]);
+        let omega = ((k + 2.0 * kc) / m).sqrt();
+        let h = harmonic(&mats, &ground, Excitation::Load { dof: 0 }, 10.0, omega).unwrap();
+        let iw = Complex64::new(0.0, omega * c / m);
+        let w2 = omega * omega;
+        let q1 = Complex64::new(10.0 / (2.0 * m), 0.0) / (Complex64::new(k / m - w2, 0.0) + iw);
+        let q2 = Complex64::new(10.0 / (2.0 * m), 0.0)
+            / (Complex64::new((k + 2.0 * kc) / m - w2, 0.0) + iw);
+        let x0 = q1 + q2;
+        let x1 = q1 - q2;
+        assert!((h.x[0] - x0).norm() < 1e-12 * x0.norm());
+        assert!((h.x[1] - x1).norm() < 1e-12 * x1.norm());
+    }
 }

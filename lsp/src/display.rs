@@ -117,6 +117,41 @@ pub fn quantity(si: f64, dim: Dim, rotational: bool) -> String {
     }
 }
 
+/// An angle (rad) in µrad, mrad or rad, whichever keeps the number at least 1.
+pub fn angle(rad: f64) -> String {
+    let pick = ["rad", "mrad", "urad"]
+        .iter()
+        .filter_map(|u| unit_factor(u).map(|f| (*u, f)))
+        .find(|(_, f)| rad.abs() / f >= 1.0 - 1e-12);
+    match pick {
+        Some((u, f)) => format!("{} {}", num(rad / f), u.replace("urad", "µrad")),
+        None => format!("{} rad", num(rad)),
+    }
+}
+
+/// The motion of a coordinate: a length for a mass, an angle for an inertia.
+pub fn motion(si: f64, rotational: bool) -> String {
+    if rotational {
+        angle(si)
+    } else {
+        quantity(si, Dim::LENGTH, false)
+    }
+}
+
+/// The force (or torque, for a rotational coordinate) a coordinate's elements carry.
+pub fn load(si: f64, rotational: bool) -> String {
+    let dim = if rotational { Dim::TORQUE } else { Dim::FORCE };
+    quantity(si, dim, false)
+}
+
+/// A phase angle in degrees, one decimal.
+pub fn degrees(rad: f64) -> String {
+    let d = rad.to_degrees();
+    // −0.0 and a value that rounds to −0.0 read as 0.
+    let d = if d.abs() < 0.05 { 0.0 } else { d };
+    format!("{d:.1}°")
+}
+
 /// A value in SI, four significant figures.
 pub fn si(si: f64, dim: Dim) -> String {
     if dim.is_none() {
@@ -161,5 +196,19 @@ mod tests {
         );
         assert_eq!(quantity(0.5, Dim::NONE, false), "0.5");
         assert_eq!(quantity(250.0, Dim::TORQUE, true), "250 N·m/rad");
+    }
+
+    #[test]
+    fn angles_and_loads_pick_a_readable_unit() {
+        // mrad = 1e-3 rad, µrad = 1e-6 rad (SI prefixes on the radian).
+        assert_eq!(angle(0.0042), "4.2 mrad");
+        assert_eq!(angle(0.00042), "420 µrad");
+        assert_eq!(angle(4.2e-5), "42 µrad");
+        assert_eq!(angle(1.5), "1.5 rad");
+        assert_eq!(motion(0.0042, false), "4.2 mm");
+        assert_eq!(load(2500.0, false), "2.5 kN");
+        assert_eq!(load(12.0, true), "12 N·m");
+        assert_eq!(degrees(-std::f64::consts::FRAC_PI_2), "-90.0°");
+        assert_eq!(degrees(-1e-9), "0.0°");
     }
 }

@@ -1,18 +1,20 @@
 //! Inlay hints: a mode summary on each system header (with ω0 and γ for a one-mass system),
-//! the evaluated value of every let and element written as an expression, and the measured
-//! value and verdict on each requirement line. Short labels; the detail is in the tooltips.
+//! the evaluated value of every let (top-level ones too) and element written as an expression,
+//! the response to each drive (`drives.rs`), and the measured value and verdict on each
+//! requirement line. Short labels; the detail is in the tooltips.
 
 use sprung_engine::dim::Dim;
 use sprung_engine::model::Requirement;
 use sprung_engine::modes::{ModalResult, ModeRegime};
 use sprung_engine::requirements::{Status, Verdict, regime_words};
 use sprung_syntax::Span;
-use sprung_syntax::ast::{ExprKind, StatementKind, Subject, Value};
+use sprung_syntax::ast::{ExprKind, Item, StatementKind, Subject, Value};
 use tower_lsp_server::ls_types::{
     InlayHint, InlayHintLabel, InlayHintTooltip, MarkupContent, MarkupKind, Range,
 };
 
 use crate::display::{self, hz, num, percent, quantity};
+use crate::drives;
 use crate::hover;
 use crate::snapshot::Snapshot;
 
@@ -21,6 +23,26 @@ pub const SUMMARY_MODES: usize = 3;
 
 pub fn inlay_hints(snap: &Snapshot, range: Range) -> Vec<InlayHint> {
     let mut out = Vec::new();
+    for item in &snap.checked.parse.file.items {
+        if let Item::Let(l) = item
+            && let Some(g) = snap
+                .checked
+                .model
+                .globals
+                .iter()
+                .find(|g| g.name_span == l.name.span)
+        {
+            value_hint(
+                snap,
+                &mut out,
+                &l.value,
+                g.value.nominal,
+                g.value.dim,
+                false,
+                g.value.formula,
+            );
+        }
+    }
     for view in snap.systems() {
         let Some(model) = view.model else { continue };
         if let Some(modal) = view.analysis.and_then(|a| a.modes.as_ref()) {
@@ -71,6 +93,18 @@ pub fn inlay_hints(snap: &Snapshot, range: Range) -> Vec<InlayHint> {
                             e.rotational,
                             e.value.formula,
                         );
+                    }
+                }
+                StatementKind::Drive { name, .. } => {
+                    if let Some((sys, drive, rep)) = drives::report_at(snap, name.span)
+                        && let Some((label, tip)) = drives::hint(
+                            sys,
+                            drive,
+                            rep,
+                            view.analysis.and_then(|a| a.modes.as_ref()),
+                        )
+                    {
+                        out.push(hint(snap, snap.line_end(st.span.end), label, Some(tip)));
                     }
                 }
                 StatementKind::Require(_) => {

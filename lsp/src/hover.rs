@@ -1,6 +1,7 @@
 //! Hovers: a system's mode table; a value's SI figure, tolerance range, the modes it matters
-//! most to and how much a +10% change moves them; a unit's meaning and factor; a requirement's
-//! verdict; doc comments.
+//! most to and how much a +10% change moves them; a top-level let's value, tolerance and the
+//! systems that use it; a drive's response (`drives.rs`); a unit's meaning and factor; a
+//! requirement's verdict; doc comments.
 //!
 //! The sensitivities are the engine's own numbers: the model is copied with one value scaled by
 //! 1.1 and assembled and solved again by `assemble` and `modes`. The energy shares are
@@ -9,7 +10,7 @@
 use sprung_engine::assemble;
 use sprung_engine::dim::Dim;
 use sprung_engine::formula::{FormulaId, Node};
-use sprung_engine::model::{End, Model, Requirement, SystemModel};
+use sprung_engine::model::{End, Model, Requirement, SystemModel, ToleranceKind};
 use sprung_engine::modes::{self, ModalConfig, ModalResult, ModeRegime};
 use sprung_engine::requirements::{Status, Verdict, regime_words};
 use sprung_engine::units;
@@ -17,6 +18,7 @@ use sprung_syntax::ast::{ElementKind, ExprKind, Item, UnitExpr};
 use tower_lsp_server::ls_types::{Hover, HoverContents, MarkupContent, MarkupKind, Position};
 
 use crate::display::{self, hz, num, percent, quantity, sig_figs};
+use crate::drives;
 use crate::hints;
 use crate::snapshot::Snapshot;
 use crate::symbols::DefKind;
@@ -312,6 +314,9 @@ fn def_markdown(snap: &Snapshot, def: usize) -> Option<String> {
                     md.push_str("\nnot analyzed: the system has errors");
                 }
             }
+            DefKind::Let if d.system.is_none() => {
+                global_lines(&mut md, model, d.name_span)?;
+            }
             DefKind::Let => {
                 let lv = sys.and_then(|s| s.lets.iter().find(|l| l.name_span == d.name_span))?;
                 value_lines(
@@ -390,13 +395,62 @@ fn def_markdown(snap: &Snapshot, def: usize) -> Option<String> {
                 }
             }
             DefKind::Force | DefKind::Torque | DefKind::Motion => {
-                md.push_str("\na drive: its responses are evaluated by `sprung response`");
+                match drives::report_at(snap, d.name_span) {
+                    Some((sys, drive, rep)) => {
+                        md.push('\n');
+                        md.push_str(&drives::markdown(
+                            sys,
+                            drive,
+                            rep,
+                            analysis.and_then(|a| a.modes.as_ref()),
+                        ));
+                    }
+                    None => md.push_str(
+                        "\nnot analyzed: `sprung response` evaluates it once the system checks",
+                    ),
+                }
             }
         }
         Some(())
     };
     let _ = details();
     Some(md)
+}
+
+/// A top-level let: its value, its own tolerance and the systems that use it.
+fn global_lines(md: &mut String, model: &Model, name_span: sprung_syntax::Span) -> Option<()> {
+    let g = model.globals.iter().find(|g| g.name_span == name_span)?;
+    let q = g.value;
+    value_lines(md, model, q.formula, q.nominal, q.dim, false);
+    if let Some(p) = g.param.and_then(|p| model.params.get(p)) {
+        let tol = match p.kind {
+            ToleranceKind::Relative => {
+                format!("{} … +{} (relative)", percent(p.low), percent(p.high))
+            }
+            ToleranceKind::Absolute => format!(
+                "{} … +{} (absolute)",
+                quantity(p.low, q.dim, false),
+                quantity(p.high, q.dim, false)
+            ),
+        };
+        md.push_str(&format!("\n- tolerance: {tol}"));
+    }
+    let users: Vec<String> = g
+        .used_by
+        .iter()
+        .filter_map(|&s| model.systems.get(s))
+        .map(|s| format!("`{}`", s.name))
+        .collect();
+    if users.is_empty() {
+        md.push_str("\n- used by no system");
+    } else {
+        md.push_str(&format!(
+            "\n- used by system{} {}",
+            if users.len() == 1 { "" } else { "s" },
+            users.join(", ")
+        ));
+    }
+    Some(())
 }
 
 fn value_lines(md: &mut String, model: &Model, id: FormulaId, nominal: f64, dim: Dim, rot: bool) {

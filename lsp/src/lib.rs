@@ -12,6 +12,7 @@ pub mod completion;
 pub mod diagnostics;
 pub mod display;
 pub mod document;
+pub mod drives;
 pub mod hints;
 pub mod hover;
 pub mod lens;

@@ -13,6 +13,7 @@ use std::sync::Arc;
 
 use sprung_engine::Checked;
 use sprung_engine::analysis::{self, Analysis, Config};
+use sprung_engine::drive_report::{self, DriveReport};
 use sprung_engine::model::SystemModel;
 use sprung_syntax::{Encoding, LineIndex, Span};
 use tower_lsp_server::ls_types::{Position, Range};
@@ -39,6 +40,9 @@ pub struct Base {
 pub struct Snapshot {
     base: Arc<Base>,
     pub analysis: Analysis,
+    /// What each drive does, per system (parallel to the model's systems), for hints and
+    /// hovers; empty in the first stage.
+    pub drives: Vec<Vec<DriveReport>>,
     /// Whether `analysis` is the analysis of this text (false in the first stage).
     pub analyzed: bool,
 }
@@ -111,6 +115,7 @@ impl Snapshot {
         Snapshot {
             base,
             analysis: Analysis::default(),
+            drives: Vec::new(),
             analyzed: false,
         }
     }
@@ -121,9 +126,18 @@ impl Snapshot {
             analysis::analyze(&base.checked, &Config::default())
         }))
         .unwrap_or_default();
+        let drives = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+            drive_report::reports(
+                &base.checked.model,
+                &analysis,
+                &drive_report::Limits::default(),
+            )
+        }))
+        .unwrap_or_default();
         Snapshot {
             base,
             analysis,
+            drives,
             analyzed: true,
         }
     }

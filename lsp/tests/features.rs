@@ -464,7 +464,7 @@ async fn hover_shows_doc_comments_where_no_value_is_known() {
     let mut c = Client::utf16().await;
     let text = "## Top speed of the drum.\nlet top = 3200 rpm\nsystem s {\n  ## The drum.\n  mass drum = 3 N\n}\n";
     c.open(URI, text).await;
-    // A top-level let: the engine keeps no value for it, the doc still shows.
+    // A top-level let: its doc shows (its value too, see top_level_lets_have_hints_and_hovers).
     let md = markdown(&c.at("textDocument/hover", URI, (1, 5)).await);
     assert!(md.contains("Top speed of the drum."), "{md}");
     // A mass with a unit error: no value, but its doc and statement.
@@ -867,4 +867,174 @@ async fn extract_a_repeated_value_into_a_let() {
         text.contains("feet between base and ground = stiffness_2 ± 15%"),
         "{text}"
     );
+}
+
+#[tokio::test]
+async fn top_level_lets_have_hints_and_hovers() {
+    let mut c = Client::utf16().await;
+    let text = "## Four rubber feet.\nlet feet = 4 * 18 kN/m ± 15%\nlet speed = 1450 rpm\nsystem a {\n  mass m = 9.6 kg\n  spring s between m and ground = feet\n}\nsystem b {\n  mass m = 2 kg\n  spring s between m and ground = 10 kN/m\n  damper d between m and ground = 20 N*s/m\n  force f on m = 1 N at speed\n}\n";
+    c.open(URI, text).await;
+    let hints = render_hints(&c.hints(URI).await);
+    // 4 × 18 kN/m = 72 kN/m, written as an expression; `speed` is a literal and gets none.
+    assert!(hints.contains("1:28 = 72 kN/m\n"), "{hints}");
+    assert!(!hints.starts_with("2:"), "{hints}");
+    let on_def = markdown(&c.at("textDocument/hover", URI, (1, 5)).await);
+    // 72 kN/m ± 15%: 61.2 … 82.8 kN/m.
+    assert!(on_def.contains("72 kN/m (72000 N/m in SI"), "{on_def}");
+    assert!(on_def.contains("61.2 kN/m … 82.8 kN/m"), "{on_def}");
+    assert!(
+        on_def.contains("tolerance: -15% … +15% (relative)"),
+        "{on_def}"
+    );
+    assert!(on_def.contains("used by system `a`"), "{on_def}");
+    assert!(on_def.contains("Four rubber feet."), "{on_def}");
+    expect_file("hover_global_let", &on_def);
+    // On its use inside system a: the same hover.
+    let on_use = markdown(&c.at("textDocument/hover", URI, (5, 35)).await);
+    assert_eq!(on_use, on_def);
+    // 1450 rpm = 1450/60 Hz = 24.17 Hz = 151.8 rad/s (rpm = rev/min, rev = 2π rad).
+    let speed = markdown(&c.at("textDocument/hover", URI, (2, 5)).await);
+    assert!(speed.contains("24.2 Hz (151.8"), "{speed}");
+    assert!(speed.contains("used by system `b`"), "{speed}");
+}
+
+/// The first number in a label after `prefix`.
+fn number_after(label: &str, prefix: &str) -> f64 {
+    let rest = &label[label
+        .find(prefix)
+        .unwrap_or_else(|| panic!("{prefix} in {label}"))
+        + prefix.len()..];
+    let end = rest
+        .find(|c: char| !(c.is_ascii_digit() || c == '.' || c == '-' || c == 'e'))
+        .unwrap_or(rest.len());
+    rest[..end]
+        .parse()
+        .unwrap_or_else(|_| panic!("a number in {rest}"))
+}
+
+#[tokio::test]
+async fn a_harmonic_force_hint_matches_the_one_mass_closed_form() {
+    let mut c = Client::utf16().await;
+    // m = 10 kg, k = 40 kN/m, ζ = 0.1 (as in PAD), F = 100 N at 8 Hz.
+    let text = "system pad {\n  mass m = 10 kg\n  spring k between m and ground = 40 kN/m\n  damper c between m and ground = 0.1 * 2 * sqrt(k * m)\n  force hum on m = 100 N at 8 Hz\n}\n";
+    c.open(URI, text).await;
+    let hints = c.hints(URI).await;
+    let hint = hints
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|h| h["position"]["line"] == 4)
+        .expect("a hint on the drive line");
+    let label = hint["label"].as_str().unwrap();
+    // Closed form (standard vibration texts, from memory):
+    // X = (F/k) / √((1 − r²)² + (2ζr)²), r = ω/ωn, ωn = √(k/m).
+    let (m, k, z, f) = (10.0_f64, 40_000.0_f64, 0.1_f64, 100.0_f64);
+    let wn = (k / m).sqrt();
+    let r = 8.0 * std::f64::consts::TAU / wn;
+    let x = (f / k) / ((1.0 - r * r).powi(2) + (2.0 * z * r).powi(2)).sqrt();
+    let shown = number_after(label, "|x| ") * 1e-3; // the label is in mm
+    assert!((shown - x).abs() <= 0.005 * x, "{label}: closed form {x} m");
+    assert!(label.ends_with(" mm · 25.8% from f1"), "{label}");
+    // (fn − f)/f = (10.066 − 8)/8 = 25.8%.
+    let md = markdown(&c.at("textDocument/hover", URI, (4, 9)).await);
+    // Force into ground through k and c: T = √(1 + (2ζr)²) / √((1 − r²)² + (2ζr)²).
+    let t = (1.0 + (2.0 * z * r).powi(2)).sqrt()
+        / ((1.0 - r * r).powi(2) + (2.0 * z * r).powi(2)).sqrt();
+    let shown_t = number_after(&md, "transmissibility (force into ground / applied): ");
+    assert!((shown_t - t).abs() <= 0.005 * t, "{md}: closed form {t}");
+    // The displacement lags the force by atan2(2ζr, 1 − r²) = 23.3°.
+    let lag = (2.0 * z * r).atan2(1.0 - r * r).to_degrees();
+    assert!(
+        md.contains(&format!(
+            "| m | {} mm | -{lag:.1}° |",
+            sprung_lsp::display::num(x * 1e3)
+        )),
+        "{md}"
+    );
+}
+
+const SKID: &str = "## A fan skid on four mounts.
+let run = 1450 rpm
+system skid \"Fan skid\" {
+  mass frame = 120 kg
+  spring mounts between frame and ground = 4 * 60 kN/m
+  damper loss between frame and ground = 0.05 * 2 * sqrt(mounts * frame)
+  force unbalance on frame = 30 N at run
+  force sweep on frame = 30 N at 600 rpm .. run
+  motion floor of ground = 0.1 mm at 20 Hz
+  ## A crate set down on the skid.
+  force bump on frame = step 2 kN
+  force knock on frame = impulse 5 N*s
+}
+";
+
+#[tokio::test]
+async fn drive_hints_and_hovers() {
+    let mut c = Client::utf16().await;
+    c.open(URI, SKID).await;
+    let hints = render_hints(&c.hints(URI).await);
+    expect_file("hints_drives", &hints);
+    // ωn = √(240 kN/m / 120 kg) = 44.72 rad/s = 7.118 Hz, ζ = 0.05 (closed form, from memory).
+    // The band 10 Hz … 24.2 Hz lies above fn; the nearest end is 10 Hz: (10 − 7.118)/10 = 28.8%.
+    assert!(hints.contains("7.12 Hz ζ0.05"), "{hints}");
+    assert!(
+        hints.contains("peak |x| ") && hints.contains("at 10 Hz · 28.8% from f1"),
+        "{hints}"
+    );
+    // The unbalance at 1450 rpm = 151.8 rad/s, r = 3.395: X = (F/k)/√((1 − r²)² + (2ζr)²)
+    // = 0.125 mm / 10.53 = 11.9 µm; (24.17 − 7.118)/24.17 = 70.5% above f1.
+    assert!(
+        hints.contains("6:40 |x| 11.9 µm · 70.5% from f1"),
+        "{hints}"
+    );
+    // The band's peak at its lower end, r = 1.405: 0.125 mm / 0.9841 = 127 µm.
+    assert!(hints.contains("7:47 peak |x| 127 µm at 10 Hz"), "{hints}");
+    // Base motion: |X|/|Y| = √(1 + (2ζr)²) / √((1 − r²)² + (2ζr)²) at r = 20/7.118 = 2.810:
+    // 1.0387 / 6.9004 = 0.151, so |X| = 0.0151 mm = 15.1 µm.
+    assert!(hints.contains("frame |x| 15.1 µm, T 0.151"), "{hints}");
+    // Step: overshoot exp(−πζ/√(1 − ζ²)) = 85.4% at ζ = 0.05, peak (1 + 0.8545) F/k =
+    // 1.8545 × 8.333 mm = 15.5 mm at t = π/ωd = π/(44.72 √(1 − 0.0025)) = 70.3 ms.
+    assert!(
+        hints.contains("peak 15.5 mm at 70.3 ms · overshoot 85.4%"),
+        "{hints}"
+    );
+    // Impulse: x = (J/(m ωd)) e^{−ζωn t} sin(ωd t), J/(m ωd) = 5/(120 × 44.66) = 0.9329 mm;
+    // the peak at tan(ωd t) = √(1 − ζ²)/ζ, ωd t = 1.5208, t = 34.0 ms:
+    // 0.9329 mm × e^{−0.0761} × 0.99875 = 0.863 mm.
+    assert!(hints.contains("peak 863 µm at 34 ms"), "{hints}");
+
+    let band = markdown(&c.at("textDocument/hover", URI, (7, 9)).await);
+    assert!(
+        band.contains("where |frame| peaks over the band 10 Hz … 24.2 Hz"),
+        "{band}"
+    );
+    expect_file("hover_drive_band", &band);
+    let step = markdown(&c.at("textDocument/hover", URI, (10, 9)).await);
+    assert!(step.contains("A crate set down on the skid."), "{step}");
+    // Final value F/k = 2000 / 240000 = 8.33 mm.
+    assert!(step.contains("- final value: 8.33 mm"), "{step}");
+    expect_file("hover_drive_step", &step);
+}
+
+#[tokio::test]
+async fn an_unexcited_undamped_mode_at_the_drive_frequency_gives_a_finite_hint() {
+    let mut c = Client::utf16().await;
+    // Two equal masses on equal springs to ground, coupled by kc, no damper. The floor moves
+    // both outer springs alike, so it cannot excite the antisymmetric mode at
+    // ω2 = √((k + 2kc)/m); driven right there, both masses move together and
+    // X/Y = k/(k − mω2²) = −k/(2kc) = −12/10 (closed form, from memory): |X| = 1.2 mm.
+    // At ω1 = √(k/m) the in-phase mode is excited and undamped: no steady state.
+    let text = "system pair {\n  mass a = 3 kg\n  mass b = 3 kg\n  spring ka between a and ground = 12 kN/m\n  spring kb between b and ground = 12 kN/m\n  spring kc between a and b = 5 kN/m\n  motion quiet of ground = 1 mm at sqrt((ka + 2 * kc) / a)\n  motion loud of ground = 1 mm at sqrt(ka / a)\n}\n";
+    c.open(URI, text).await;
+    let hints = render_hints(&c.hints(URI).await);
+    assert!(
+        hints.contains("6:58 a |x| 1.2 mm, T 1.2 · at f2"),
+        "{hints}"
+    );
+    assert!(
+        hints.contains("7:46 unbounded: undamped resonance"),
+        "{hints}"
+    );
+    let md = markdown(&c.at("textDocument/hover", URI, (7, 10)).await);
+    assert!(md.contains("**no steady state**"), "{md}");
 }

@@ -16,8 +16,8 @@ use crate::diagnostics::{Code, Diagnostic};
 use crate::dim::Dim;
 use crate::formula::{Formulas, Node};
 use crate::model::{
-    Dof, DofKind, Drive, DriveForm, Element, End, Initial, LetValue, Limit, Model, MotionKind,
-    Param, Quantity, Requirement, SystemModel,
+    Dof, DofKind, Drive, DriveForm, Element, End, GlobalLet, Initial, LetValue, Limit, Model,
+    MotionKind, Param, Quantity, Requirement, SystemModel,
 };
 pub use expr::FUNCTIONS;
 use expr::{Compiler, Names, Resolved};
@@ -293,11 +293,60 @@ impl<'t> Checker<'t, '_> {
                 .with_help("add `system NAME { mass ... }`"),
             );
         }
+        let globals = self.global_lets(file, &globals, &systems);
         Model {
             formulas: self.formulas,
             params: self.params,
+            globals,
             systems,
         }
+    }
+
+    /// The top-level lets that checked, with their own tolerance and the systems that use them.
+    fn global_lets(
+        &self,
+        file: &ast::File,
+        defs: &[Def<'_>],
+        systems: &[SystemModel],
+    ) -> Vec<GlobalLet> {
+        let uses: Vec<Vec<bool>> = systems
+            .iter()
+            .map(|sm| {
+                let mut used = vec![false; self.formulas.len()];
+                for id in self.formulas.closure(&system_formulas(sm)) {
+                    used[id.index()] = true;
+                }
+                used
+            })
+            .collect();
+        let mut out = Vec::new();
+        for item in &file.items {
+            let ast::Item::Let(l) = item else { continue };
+            // A duplicate name has no def of its own; the first definition keeps it.
+            let Some(def) = defs.iter().find(|d| d.name_span == l.name.span) else {
+                continue;
+            };
+            let State::Done(value) = def.state else {
+                continue;
+            };
+            let param = self
+                .params
+                .iter()
+                .position(|p| p.name == l.name.name && l.span.contains(p.span.start));
+            let used_by = (0..systems.len())
+                .filter(|&s| uses[s].get(value.formula.index()) == Some(&true))
+                .collect();
+            out.push(GlobalLet {
+                name: l.name.name.clone(),
+                name_span: l.name.span,
+                span: l.span,
+                value,
+                param,
+                used_by,
+                doc: l.doc.as_ref().map(|d| d.text.clone()),
+            });
+        }
+        out
     }
 
     fn define<'a>(
@@ -1535,6 +1584,30 @@ fn drive_formulas(f: &DriveForm) -> Vec<crate::formula::FormulaId> {
         } => vec![amplitude.formula, from.formula, to.formula],
         DriveForm::Step { amplitude } | DriveForm::Impulse { amplitude } => vec![amplitude.formula],
     }
+}
+
+/// Every value a system holds: the roots of what it depends on.
+fn system_formulas(sm: &SystemModel) -> Vec<crate::formula::FormulaId> {
+    let mut out: Vec<_> = sm.lets.iter().map(|l| l.value.formula).collect();
+    out.extend(sm.dofs.iter().map(|d| d.value.formula));
+    out.extend(sm.elements.iter().map(|e| e.value.formula));
+    out.extend(sm.drives.iter().flat_map(|d| drive_formulas(&d.form)));
+    for i in &sm.initials {
+        out.push(i.displacement.formula);
+        out.extend(i.velocity.map(|v| v.formula));
+    }
+    out.extend(sm.gravity.map(|g| g.formula));
+    for r in &sm.requirements {
+        out.extend(r.within.map(|w| w.formula));
+        match &r.limit {
+            Limit::Compare { rhs, .. } => out.push(rhs.formula),
+            Limit::In { lo, hi } | Limit::Outside { lo, hi } => {
+                out.extend([lo.formula, hi.formula])
+            }
+            Limit::Is { .. } => {}
+        }
+    }
+    out
 }
 
 /// The statement text with runs of whitespace collapsed to one space.
