@@ -24,6 +24,7 @@ use tower_lsp_server::ls_types::*;
 use tower_lsp_server::{Client, LanguageServer};
 
 use crate::document::Document;
+use crate::formatting;
 use crate::snapshot::Snapshot;
 use crate::{actions, completion, diagnostics, hints, hover, lens, navigation, outline, semantic};
 
@@ -328,6 +329,8 @@ impl LanguageServer for Server {
                 folding_range_provider: Some(FoldingRangeProviderCapability::Simple(true)),
                 selection_range_provider: Some(SelectionRangeProviderCapability::Simple(true)),
                 workspace_symbol_provider: Some(OneOf::Left(true)),
+                document_formatting_provider: Some(OneOf::Left(true)),
+                document_range_formatting_provider: Some(OneOf::Left(true)),
                 semantic_tokens_provider: Some(
                     SemanticTokensServerCapabilities::SemanticTokensOptions(
                         SemanticTokensOptions {
@@ -624,6 +627,24 @@ impl LanguageServer for Server {
     async fn code_lens(&self, params: CodeLensParams) -> Result<Option<Vec<CodeLens>>> {
         self.inner
             .read(&params.text_document.uri, |s| Some(lens::code_lenses(s)))
+            .await
+    }
+
+    async fn formatting(&self, params: DocumentFormattingParams) -> Result<Option<Vec<TextEdit>>> {
+        self.inner
+            .read(&params.text_document.uri, formatting::document)
+            .await
+    }
+
+    async fn range_formatting(
+        &self,
+        params: DocumentRangeFormattingParams,
+    ) -> Result<Option<Vec<TextEdit>>> {
+        let range = params.range;
+        self.inner
+            .read(&params.text_document.uri, move |s| {
+                formatting::range(s, range)
+            })
             .await
     }
 
