@@ -251,7 +251,7 @@ impl<'s> Layout<'s> {
         let lexed = lex(text);
         let mut tokens = Vec::with_capacity(lexed.tokens.len());
         let mut prev_end = 0;
-        for (tok, span) in lexed.tokens {
+        for (k, (tok, span)) in lexed.tokens.into_iter().enumerate() {
             let role = if matches!(tok, Token::Comment(_)) {
                 Role::Comment
             } else {
@@ -260,13 +260,17 @@ impl<'s> Layout<'s> {
                     Err(_) => Role::Inner,
                 }
             };
+            // Only whitespace stands between two tokens, so a token starts its line exactly
+            // when a line break comes before it (or it is the first). Counted on the gap, not
+            // by looking back along the line, which would be quadratic on one long line.
             let gap = text.get(prev_end..span.start).unwrap_or("");
+            let newlines = gap.matches('\n').count();
             tokens.push(Tk {
                 tok,
                 span,
                 role,
-                newlines: gap.matches('\n').count(),
-                own_line: starts_line(text, span.start),
+                newlines,
+                own_line: newlines > 0 || k == 0,
             });
             prev_end = span.end;
         }
@@ -303,6 +307,17 @@ impl<'s> Layout<'s> {
         let mut comment_ended = false;
         let mut prev: Option<&Tk<'_>> = None;
         let mut caret_spaced = false;
+        // For each picked token, whether the next significant token after it is inside a
+        // statement (one backward pass, so runs of comments cost no more than one each).
+        let mut next_inner = vec![false; picked.len()];
+        let mut seen_inner = false;
+        for (k, &i) in picked.iter().enumerate().rev() {
+            next_inner[k] = seen_inner;
+            let role = self.tokens[i].role;
+            if role != Role::Comment {
+                seen_inner = role == Role::Inner;
+            }
+        }
         for (k, &i) in picked.iter().enumerate() {
             let t = &self.tokens[i];
             let blank = t.newlines >= 2 && !out.is_empty() && !after_open;
@@ -314,12 +329,7 @@ impl<'s> Layout<'s> {
                     // A comment after a comment (the first moved behind a `{`) cannot share
                     // its line.
                     if t.own_line || out.is_empty() || comment_ended {
-                        let next_inner = picked[k + 1..]
-                            .iter()
-                            .map(|&n| self.tokens[n].role)
-                            .find(|r| *r != Role::Comment)
-                            == Some(Role::Inner);
-                        let (indent, blank) = if next_inner {
+                        let (indent, blank) = if next_inner[k] {
                             (depth * 2 + 4, false)
                         } else {
                             (depth * 2, blank)
@@ -428,15 +438,6 @@ fn new_line(out: &mut String, blank: bool, indent: usize) {
     for _ in 0..indent {
         out.push(' ');
     }
-}
-
-/// Whether only blanks stand between the start of the line and `offset`.
-fn starts_line(text: &str, offset: usize) -> bool {
-    let before = text.get(..offset).unwrap_or("");
-    let line_start = before.rfind('\n').map_or(0, |i| i + 1);
-    before[line_start..]
-        .chars()
-        .all(|c| matches!(c, ' ' | '\t' | '\r' | '\u{c}' | '\u{FEFF}'))
 }
 
 fn let_roots<'a>(l: &'a Let, roots: &mut Vec<&'a Expr>) {
@@ -571,9 +572,10 @@ fn region_for(text: &str, parsed: &Parse, range: Span) -> Option<(Span, usize)> 
 /// it stops growing. `None` when no unit is touched or the region `escapes`.
 fn grow(text: &str, units: &[Span], range: Span, escapes: impl Fn(Span) -> bool) -> Option<Span> {
     let touches = |s: Span, r: Span| s.start <= r.end && r.start <= s.end;
-    let first = units.iter().position(|u| touches(*u, range))?;
-    let last = units.iter().rposition(|u| touches(*u, range))?;
-    let (mut first, mut last) = (first, last);
+    let mut first = units.iter().position(|u| touches(*u, range))?;
+    let mut last = units.iter().rposition(|u| touches(*u, range))?;
+    // Units are in order and do not overlap, so growing one unit at a time at either end is
+    // linear overall.
     loop {
         let region = Span::new(
             line_start(text, units[first].start),
@@ -582,13 +584,18 @@ fn grow(text: &str, units: &[Span], range: Span, escapes: impl Fn(Span) -> bool)
         if escapes(region) {
             return None;
         }
-        let f = units.iter().position(|u| u.end > region.start)?;
-        let l = units.iter().rposition(|u| u.start < region.end)?;
-        let (f, l) = (f.min(first), l.max(last));
-        if (f, l) == (first, last) {
+        let mut grew = false;
+        while first > 0 && units[first - 1].end > region.start {
+            first -= 1;
+            grew = true;
+        }
+        while last + 1 < units.len() && units[last + 1].start < region.end {
+            last += 1;
+            grew = true;
+        }
+        if !grew {
             return Some(region);
         }
-        (first, last) = (f, l);
     }
 }
 

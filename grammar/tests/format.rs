@@ -293,6 +293,40 @@ fn range_refuses_a_file_with_syntax_errors() {
     ));
 }
 
+#[test]
+fn long_lines_and_long_runs_of_comments_format() {
+    // 20,000 statements on one line, and 20,000 comment lines in a row: both are laid out in
+    // one pass (a layout that looked back along the line, or ahead over the comments, for each
+    // token would not finish here).
+    let mut one_line = String::from("system wide {");
+    for i in 0..20_000 {
+        one_line.push_str(&format!(" mass m{i} = 1 kg"));
+    }
+    one_line.push_str(" }");
+    let out = format(&one_line, &cfg()).unwrap_or_default();
+    assert_eq!(out.lines().count(), 20_002);
+    assert!(out.contains("\n  mass m19999 = 1 kg\n}\n"));
+    // The range takes the whole line, so the whole system; only the file's final newline,
+    // which is not part of any line's content, is left to `format`.
+    let edits = format_range(&one_line, Span::at(20), &cfg()).unwrap_or_default();
+    assert!(
+        apply(&one_line, &edits) + "\n" == out,
+        "range and whole format differ"
+    );
+
+    let mut comments = String::from("system notes {\n  mass m = 1 kg\n");
+    for i in 0..20_000 {
+        comments.push_str(&format!("# note {i}\n"));
+    }
+    comments.push_str("}\n");
+    let out = format(&comments, &cfg()).unwrap_or_default();
+    assert!(
+        out.contains("\n  # note 0\n"),
+        "comments inside a body are indented"
+    );
+    assert_eq!(format(&out, &cfg()).as_deref(), Ok(out.as_str()));
+}
+
 /// Pieces a mutation may insert: the tokens and spacings the formatter has rules for.
 const PIECES: &[&str] = &[
     " ",

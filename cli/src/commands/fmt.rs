@@ -8,6 +8,7 @@
 use std::fs;
 use std::io::{self, BufWriter, Read, Write};
 use std::path::Path;
+use std::time::Duration;
 
 use sprung_engine::{Code, Diagnostic};
 use sprung_syntax::{FormatConfig, FormatError, format};
@@ -20,6 +21,9 @@ use super::{Status, report_error};
 
 /// Lines of context around each change in a `--check` diff.
 const DIFF_CONTEXT: usize = 2;
+
+/// How long a `--check` diff may search for the smallest set of changed lines.
+const DIFF_TIMEOUT: Duration = Duration::from_millis(500);
 
 #[derive(Default)]
 struct Counts {
@@ -162,7 +166,11 @@ fn refuse(renderer: &HumanRenderer, shown: &str, text: &str, err: &FormatError) 
 }
 
 fn write_diff(out: &mut impl Write, shown: &str, old: &str, new: &str) -> io::Result<()> {
-    let diff = similar::TextDiff::from_lines(old, new);
+    // A deadline keeps a huge file from a long exact search: past it the diff is coarser
+    // (larger hunks), never wrong.
+    let diff = similar::TextDiff::configure()
+        .timeout(DIFF_TIMEOUT)
+        .diff_lines(old, new);
     let unified = diff
         .unified_diff()
         .context_radius(DIFF_CONTEXT)
