@@ -30,6 +30,13 @@ pub enum Command {
     /// Simulate the response of one mass or inertia to the step and impulse drives and the
     /// initial conditions.
     Simulate(SimulateArgs),
+    /// Format model files in place, in the one canonical layout (comments kept).
+    ///
+    /// Folders are searched recursively for `*.sprung` files; `-` formats standard input to
+    /// standard output. A file with syntax errors is reported and left untouched.
+    /// Exit status: 0 all formatted (with `--check`: nothing would change), 1 a file would
+    /// change (`--check`) or has syntax errors, 2 usage or I/O error.
+    Fmt(FmtArgs),
     /// Print the long explanation of a diagnostic code (e.g. `sprung explain SP301`).
     Explain(ExplainArgs),
     /// Run the language server over stdin and stdout (for editors).
@@ -150,6 +157,17 @@ pub struct CheckArgs {
 pub enum Format {
     Human,
     Json,
+}
+
+#[derive(Debug, clap::Args)]
+pub struct FmtArgs {
+    /// Model files or folders to format, or `-` for standard input.
+    #[arg(required = true, value_name = "PATHS")]
+    pub paths: Vec<PathBuf>,
+    /// Write nothing: list the files that would change, each with a diff, and exit 1 if any
+    /// would.
+    #[arg(long)]
+    pub check: bool,
 }
 
 #[derive(Debug, clap::Args)]

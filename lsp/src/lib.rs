@@ -2,7 +2,7 @@
 //!
 //! It owns the document store, change handling and analysis scheduling ([`server`]) and one
 //! small module per feature translating engine results to protocol types ([`diagnostics`],
-//! [`hints`], [`hover`], [`lens`], [`actions`], [`completion`], [`navigation`], [`outline`], [`semantic`]). It must
+//! [`hints`], [`hover`], [`lens`], [`actions`], [`completion`], [`navigation`], [`outline`], [`semantic`], [`formatting`]). It must
 //! not contain physics or unit rules: values, modes and verdicts come from `sprung-engine`,
 //! unit factors from its registry. The binary `sprung lsp` only picks the transport
 //! ([`serve_stdio`]); tests drive the service in-process ([`service`]).
@@ -13,6 +13,7 @@ pub mod diagnostics;
 pub mod display;
 pub mod document;
 pub mod drives;
+pub mod formatting;
 pub mod hints;
 pub mod hover;
 pub mod lens;

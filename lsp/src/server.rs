@@ -32,6 +32,7 @@ use tower_lsp_server::ls_types::*;
 use tower_lsp_server::{Client, LanguageServer};
 
 use crate::document::Document;
+use crate::formatting;
 use crate::snapshot::{Base, Snapshot};
 use crate::{actions, completion, diagnostics, hints, hover, lens, navigation, outline, semantic};
 
@@ -489,6 +490,8 @@ impl LanguageServer for Server {
                 folding_range_provider: Some(FoldingRangeProviderCapability::Simple(true)),
                 selection_range_provider: Some(SelectionRangeProviderCapability::Simple(true)),
                 workspace_symbol_provider: Some(OneOf::Left(true)),
+                document_formatting_provider: Some(OneOf::Left(true)),
+                document_range_formatting_provider: Some(OneOf::Left(true)),
                 semantic_tokens_provider: Some(
                     SemanticTokensServerCapabilities::SemanticTokensOptions(
                         SemanticTokensOptions {
@@ -773,6 +776,28 @@ impl LanguageServer for Server {
         self.inner
             .read(&params.text_document.uri, Need::Analysis, |s| {
                 Some(lens::code_lenses(s))
+            })
+            .await
+    }
+
+    async fn formatting(&self, params: DocumentFormattingParams) -> Result<Option<Vec<TextEdit>>> {
+        self.inner
+            .read(
+                &params.text_document.uri,
+                Need::Checked,
+                formatting::document,
+            )
+            .await
+    }
+
+    async fn range_formatting(
+        &self,
+        params: DocumentRangeFormattingParams,
+    ) -> Result<Option<Vec<TextEdit>>> {
+        let range = params.range;
+        self.inner
+            .read(&params.text_document.uri, Need::Checked, move |s| {
+                formatting::range(s, range)
             })
             .await
     }

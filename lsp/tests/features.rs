@@ -1038,3 +1038,139 @@ async fn an_unexcited_undamped_mode_at_the_drive_frequency_gives_a_finite_hint()
     let md = markdown(&c.at("textDocument/hover", URI, (7, 10)).await);
     assert!(md.contains("**no steady state**"), "{md}");
 }
+
+// ---- formatting ----
+
+/// A fan skid written in a hurry: two statements on one line, loose spacing, `+-`, a `·`,
+/// and multi-byte characters (`µ`, `±`) before the changes so UTF-16 positions matter.
+const MESSY_SKID: &str = "## Fan skid, µ-sized tolerances ± everywhere.
+system skid {
+  mass frame = 420 kg ± 5%   # welded base
+  spring isolators between frame and ground=4*65 kN/m+-10%
+  damper snubbers between frame and ground = 2·0.05*sqrt(isolators*frame)  force hum on frame = 180 N at 1180 rpm
+}
+";
+
+/// Applies protocol edits (UTF-16 positions) to a text.
+fn apply_edits(text: &str, edits: &Value) -> String {
+    let offset = |p: &Value| -> usize {
+        let line = p["line"].as_u64().unwrap_or(0) as usize;
+        let character = p["character"].as_u64().unwrap_or(0) as usize;
+        let start: usize = text.split_inclusive('\n').take(line).map(str::len).sum();
+        let mut units = 0;
+        for (i, ch) in text[start..].char_indices() {
+            if units >= character || ch == '\n' {
+                return start + i;
+            }
+            units += ch.len_utf16();
+        }
+        text.len()
+    };
+    let mut spans: Vec<(usize, usize, String)> = edits
+        .as_array()
+        .expect("an array of edits")
+        .iter()
+        .map(|e| {
+            (
+                offset(&e["range"]["start"]),
+                offset(&e["range"]["end"]),
+                e["newText"].as_str().unwrap_or("").to_string(),
+            )
+        })
+        .collect();
+    spans.sort_by_key(|s| std::cmp::Reverse(s.0));
+    let mut out = text.to_string();
+    for (start, end, new) in spans {
+        out.replace_range(start..end, &new);
+    }
+    out
+}
+
+fn render_edits(edits: &Value) -> String {
+    let mut out = String::new();
+    for e in edits.as_array().expect("an array of edits") {
+        out.push_str(&format!(
+            "{} {:?}\n",
+            range(&e["range"]),
+            e["newText"].as_str().unwrap_or("?")
+        ));
+    }
+    out
+}
+
+async fn format_request(c: &mut Client, uri: &str) -> Value {
+    c.request(
+        "textDocument/formatting",
+        json!({ "textDocument": { "uri": uri }, "options": { "tabSize": 8, "insertSpaces": false } }),
+    )
+    .await
+    .expect("no error")
+}
+
+#[tokio::test]
+async fn formatting_gives_one_minimal_edit_that_yields_the_canonical_text() {
+    let (mut c, init) = Client::start(json!({})).await;
+    assert_eq!(init["capabilities"]["documentFormattingProvider"], true);
+    assert_eq!(
+        init["capabilities"]["documentRangeFormattingProvider"],
+        true
+    );
+    c.open(URI, MESSY_SKID).await;
+    let edits = format_request(&mut c, URI).await;
+    assert_eq!(edits.as_array().map(Vec::len), Some(1), "{edits}");
+    let canonical = sprung_syntax::format(MESSY_SKID, &sprung_syntax::FormatConfig::default())
+        .expect("the fixture parses");
+    assert_eq!(apply_edits(MESSY_SKID, &edits), canonical);
+    // The edit starts at the first change: the second of the three spaces before `# welded
+    // base`, column 2 + 24 + 1 = 27 in UTF-16 units (`±` is one unit, two bytes), and the
+    // untouched end (`  force hum ...` and `}`) is left out of it.
+    let rendered = render_edits(&edits);
+    assert!(rendered.starts_with("2:27-4:73 "), "{rendered}");
+    expect_file("formatting_skid", &rendered);
+}
+
+#[tokio::test]
+async fn formatting_a_formatted_document_gives_no_edits_and_a_broken_one_none() {
+    let mut c = pad().await;
+    // PAD is written in the canonical layout.
+    assert_eq!(format_request(&mut c, URI).await, json!([]));
+    let broken = "file:///work/broken.sprung";
+    c.open(
+        broken,
+        "system s {\n  mass m = 1 kg\n  spring k between m = 1 kN/m\n}\n",
+    )
+    .await;
+    assert_eq!(format_request(&mut c, broken).await, Value::Null);
+}
+
+#[tokio::test]
+async fn range_formatting_touches_only_the_selected_statement() {
+    let mut c = Client::utf16().await;
+    c.open(URI, MESSY_SKID).await;
+    // A cursor-wide range on the spring (line 3).
+    let edits = c
+        .request(
+            "textDocument/rangeFormatting",
+            json!({ "textDocument": { "uri": URI },
+                    "range": { "start": { "line": 3, "character": 10 }, "end": { "line": 3, "character": 10 } },
+                    "options": { "tabSize": 2, "insertSpaces": true } }),
+        )
+        .await
+        .expect("no error");
+    let after = apply_edits(MESSY_SKID, &edits);
+    assert!(
+        after.contains("\n  spring isolators between frame and ground = 4 * 65 kN/m ± 10%\n"),
+        "{after}"
+    );
+    // The lines around it are as they were.
+    assert!(
+        after.contains("mass frame = 420 kg ± 5%   # welded base"),
+        "{after}"
+    );
+    assert!(
+        after.contains("2·0.05*sqrt(isolators*frame)  force hum"),
+        "{after}"
+    );
+    // Minimal: from `=` (column 43) to the `+-` (columns 53-55); `10%` is kept as it was.
+    assert_eq!(render_edits(&edits), "3:43-3:55 \" = 4 * 65 kN/m ± \"\n");
+}

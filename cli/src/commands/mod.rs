@@ -2,6 +2,7 @@
 
 mod check;
 mod explain;
+mod fmt;
 mod lsp;
 mod modes;
 mod response;
@@ -38,6 +39,7 @@ pub fn run(cli: Cli) -> Status {
         Command::Modes(args) => modes::run(&args),
         Command::Response(args) => response::run_response(&args),
         Command::Simulate(args) => response::run_simulate(&args),
+        Command::Fmt(args) => fmt::run(&args),
         Command::Explain(args) => explain::run(&args),
         Command::Lsp => lsp::run(),
     };
