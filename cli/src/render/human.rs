@@ -81,7 +81,11 @@ impl HumanRenderer {
         for diagnostic in diagnostics {
             let report = Report::new(diagnostic, path, text, &index, Arc::clone(&shared));
             let mut rendered = String::new();
-            if self.handler.render_report(&mut rendered, &report).is_err() {
+            // miette pads underlines with a format width, which panics past 65,535 columns;
+            // a snippet of a line that long would not help anyone read it either.
+            if report.touches_long_line(text)
+                || self.handler.render_report(&mut rendered, &report).is_err()
+            {
                 // miette could not draw the snippet; the message and position still matter.
                 rendered = report.one_line();
             }
@@ -91,6 +95,9 @@ impl HumanRenderer {
         Ok(())
     }
 }
+
+/// Lines longer than this (in bytes) get the one-line report instead of a snippet.
+const MAX_SNIPPET_LINE: usize = 2_000;
 
 /// The adapter miette renders: one engine diagnostic with its file as a named source. The
 /// source is named `path:line:column` so the snippet header carries the position.
@@ -126,6 +133,21 @@ impl<'a> Report<'a> {
             primary,
             labels,
         }
+    }
+
+    /// Whether a span of the report lies on a line longer than a snippet can show.
+    fn touches_long_line(&self, text: &str) -> bool {
+        std::iter::once(self.primary)
+            .chain(self.labels.iter().map(|(s, _)| *s))
+            .any(|span| {
+                let start = text[..span.start].rfind('\n').map_or(0, |i| i + 1);
+                let end = text[span.end..]
+                    .find('\n')
+                    .map_or(text.len(), |i| span.end + i);
+                text[start..end]
+                    .split('\n')
+                    .any(|line| line.len() > MAX_SNIPPET_LINE)
+            })
     }
 
     /// The fallback when no snippet can be drawn.
@@ -223,6 +245,18 @@ mod tests {
             !out.contains('\u{1b}'),
             "plain output has escape codes: {out}"
         );
+    }
+
+    #[test]
+    fn an_error_far_along_a_very_long_line_gets_the_one_line_report() {
+        let mut text = "let a = 1 ".repeat(10_000);
+        let start = text.len();
+        text.push_str("zz\n");
+        let diagnostic = Diagnostic::new(Code::UnknownUnit, Span::new(start, start + 2), "far");
+        for style in [Style::Plain, Style::Fancy] {
+            let out = render(style, &text, diagnostic.clone());
+            assert!(out.contains("far at rack.sprung:1:100001"), "{out}");
+        }
     }
 
     #[test]
