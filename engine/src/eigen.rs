@@ -76,7 +76,9 @@ pub fn symmetric(a: &DMatrix<f64>) -> Result<(Vec<f64>, DMatrix<f64>), EigenErro
 
 /// Solves the generalized symmetric problem K φ = ω² M φ with M positive definite: Cholesky
 /// M = L Lᵀ, a symmetric eigensolver on L⁻¹ K L⁻ᵀ, and φ = L⁻ᵀ u. A diagonal M (what assembly
-/// produces) takes the same route with L = diag(√mᵢ), done by scaling.
+/// produces) takes the same route with L = diag(√mᵢ), done by scaling; then, when the springs
+/// join the coordinates in chains (see [`path_order`]), L⁻¹ K L⁻ᵀ is tridiagonal after a
+/// reordering and goes straight to the tridiagonal solver.
 pub fn generalized_symmetric(
     k: &DMatrix<f64>,
     m: &DMatrix<f64>,
@@ -93,13 +95,31 @@ pub fn generalized_symmetric(
             }
             s.push(mi.sqrt());
         }
-        let a = DMatrix::from_fn(n, n, |i, j| {
+        let a = Mat::from_fn(n, n, |i, j| {
             // Symmetric by construction: the same expression for (i, j) and (j, i).
             let kij = 0.5 * (k[(i, j)] + k[(j, i)]);
             kij / s[i] / s[j]
         });
-        let (omega2, u) = symmetric(&a)?;
-        let shapes = DMatrix::from_fn(n, n, |i, j| u[(i, j)] / s[i]);
+        // `row[i]`: the row of the eigenvector matrix that holds coordinate i.
+        let (omega2, u, row) = match path_order(a.as_ref()) {
+            Some(order) => {
+                let (values, u) = tridiagonal(a.as_ref(), &order)?;
+                let mut row = vec![0; n];
+                for (p, &i) in order.iter().enumerate() {
+                    row[i] = p;
+                }
+                (values, u, row)
+            }
+            None => {
+                let evd = a
+                    .self_adjoint_eigen(Side::Lower)
+                    .map_err(|_| EigenError::NoConvergence)?;
+                let values = (0..n).map(|i| evd.S()[i]).collect();
+                (values, evd.U().to_owned(), (0..n).collect())
+            }
+        };
+        drop(a);
+        let shapes = DMatrix::from_fn(n, n, |i, j| u[(row[i], j)] / s[i]);
         return Ok(UndampedEigen { omega2, shapes });
     }
     let l = cholesky(m)?;
@@ -118,6 +138,92 @@ pub fn generalized_symmetric(
         omega2: (0..n).map(|i| evd.S()[i]).collect(),
         shapes: from_faer(phi.as_ref()),
     })
+}
+
+/// When the off-diagonal nonzeros of the symmetric matrix `a` (lower triangle read) form
+/// disjoint paths, as they do for a chain of masses, an order of the coordinates along those
+/// paths, path after path: in that order `a` is tridiagonal. `None` for any other pattern
+/// (a coordinate with three neighbours, or a cycle). The scan stops at the first coordinate
+/// with a third neighbour, so a dense matrix costs little.
+fn path_order(a: MatRef<'_, f64>) -> Option<Vec<usize>> {
+    let n = a.nrows();
+    const NONE: usize = usize::MAX;
+    let mut nbr = vec![[NONE; 2]; n];
+    let link = |nbr: &mut [[usize; 2]], i: usize, j: usize| -> bool {
+        match nbr[i] {
+            [NONE, _] => nbr[i][0] = j,
+            [_, NONE] => nbr[i][1] = j,
+            _ => return false,
+        }
+        true
+    };
+    for j in 0..n {
+        for i in (j + 1)..n {
+            if a[(i, j)] != 0.0 && !(link(&mut nbr, i, j) && link(&mut nbr, j, i)) {
+                return None;
+            }
+        }
+    }
+    let mut order = Vec::with_capacity(n);
+    let mut seen = vec![false; n];
+    for start in 0..n {
+        // Walk each path from one of its ends (a coordinate with at most one neighbour).
+        if seen[start] || nbr[start][1] != NONE {
+            continue;
+        }
+        let (mut prev, mut at) = (NONE, start);
+        while at != NONE && !seen[at] {
+            seen[at] = true;
+            order.push(at);
+            let next = if nbr[at][0] != prev {
+                nbr[at][0]
+            } else {
+                nbr[at][1]
+            };
+            (prev, at) = (at, next);
+        }
+    }
+    // Coordinates left unvisited lie on a cycle.
+    (order.len() == n).then_some(order)
+}
+
+/// Eigenvalues (ascending) and orthonormal eigenvectors of the symmetric matrix `a`, which is
+/// tridiagonal in the coordinate order `order` (see [`path_order`]): faer's tridiagonal
+/// divide-and-conquer solver, skipping the dense reduction to tridiagonal form and the
+/// back-transformation that the general solver would spend on a matrix already in that form.
+/// The eigenvectors' rows are in the order `order`.
+fn tridiagonal(a: MatRef<'_, f64>, order: &[usize]) -> Result<(Vec<f64>, Mat<f64>), EigenError> {
+    use faer::diag::{DiagMut, DiagRef};
+    use faer::dyn_stack::{MemBuffer, MemStack};
+    use faer::linalg::evd;
+    let n = order.len();
+    let diag: Vec<f64> = order.iter().map(|&i| a[(i, i)]).collect();
+    let sub: Vec<f64> = (0..n)
+        .map(|p| match order.get(p + 1) {
+            // Between two paths the entry is zero, which the solver deflates.
+            Some(&q) => a[(q.max(order[p]), q.min(order[p]))],
+            None => 0.0,
+        })
+        .collect();
+    let mut values = vec![0.0; n];
+    let mut u = Mat::<f64>::zeros(n, n);
+    let mut buffer = MemBuffer::new(evd::self_adjoint_evd_scratch::<f64>(
+        n,
+        evd::ComputeEigenvectors::Yes,
+        Par::Seq,
+        Default::default(),
+    ));
+    evd::tridiagonal_self_adjoint_evd(
+        DiagRef::from_slice(&diag),
+        DiagRef::from_slice(&sub),
+        DiagMut::from_slice_mut(&mut values),
+        Some(u.as_mut()),
+        Par::Seq,
+        MemStack::new(&mut buffer),
+        Default::default(),
+    )
+    .map_err(|_| EigenError::NoConvergence)?;
+    Ok((values, u))
 }
 
 /// Eigenvalues and right eigenvectors of a real square matrix.
@@ -251,6 +357,88 @@ mod tests {
         assert!(residual.abs().max() < 1e-10);
         let gram = e.shapes.transpose() * &m * &e.shapes;
         assert!((gram - DMatrix::identity(2, 2)).abs().max() < 1e-12);
+    }
+
+    /// A fixed–free chain of `n` equal masses whose coordinate i sits at position `at[i]` along
+    /// the chain (position 0 is the one on the spring to ground).
+    fn scrambled_chain(at: &[usize], m: f64, k: f64) -> (DMatrix<f64>, DMatrix<f64>) {
+        let n = at.len();
+        let mut pos_to_dof = vec![0; n];
+        for (i, &p) in at.iter().enumerate() {
+            pos_to_dof[p] = i;
+        }
+        let mut kk = DMatrix::zeros(n, n);
+        kk[(pos_to_dof[0], pos_to_dof[0])] += k;
+        for p in 1..n {
+            let (a, b) = (pos_to_dof[p - 1], pos_to_dof[p]);
+            kk[(a, a)] += k;
+            kk[(b, b)] += k;
+            kk[(a, b)] -= k;
+            kk[(b, a)] -= k;
+        }
+        (kk, DMatrix::from_diagonal_element(n, n, m))
+    }
+
+    #[test]
+    fn path_order_finds_chains_and_refuses_other_patterns() {
+        let (k, _) = scrambled_chain(&[3, 0, 5, 1, 4, 2], 1.0, 1.0);
+        let order = path_order(to_faer(&k).as_ref()).unwrap();
+        // Along the order, only neighbours are coupled: tridiagonal.
+        for (p, &i) in order.iter().enumerate() {
+            for (q, &j) in order.iter().enumerate() {
+                if p.abs_diff(q) > 1 {
+                    assert_eq!(k[(i, j)], 0.0);
+                }
+            }
+        }
+        // Two separate chains and a lone coordinate: still paths.
+        let mut two = DMatrix::<f64>::identity(5, 5);
+        for (a, b) in [(0, 3), (1, 4)] {
+            two[(a, b)] = -1.0;
+            two[(b, a)] = -1.0;
+        }
+        assert_eq!(path_order(to_faer(&two).as_ref()).map(|o| o.len()), Some(5));
+        // A coordinate with three neighbours, and a ring: not paths.
+        let mut star = DMatrix::<f64>::identity(4, 4);
+        for b in 1..4 {
+            star[(0, b)] = -1.0;
+            star[(b, 0)] = -1.0;
+        }
+        assert_eq!(path_order(to_faer(&star).as_ref()), None);
+        let mut ring = DMatrix::<f64>::identity(4, 4);
+        for a in 0..4 {
+            let b = (a + 1) % 4;
+            ring[(a, b)] = -1.0;
+            ring[(b, a)] = -1.0;
+        }
+        assert_eq!(path_order(to_faer(&ring).as_ref()), None);
+    }
+
+    #[test]
+    fn scrambled_chain_matches_the_closed_form_through_the_tridiagonal_route() {
+        // Fixed–free chain of N equal masses (standard closed form for the discrete chain,
+        // from memory): ωj = 2√(k/m)·sin((2j−1)π/(2(2N+1))), j = 1..N. Coordinates declared
+        // out of chain order, so the reordering is exercised; N = 150 is above faer's
+        // divide-and-conquer threshold (128), so its recursion is exercised too.
+        let n = 150;
+        let at: Vec<usize> = (0..n).map(|i| (i * 37) % n).collect();
+        let (m, k) = (2.0, 5e4);
+        let (kk, mm) = scrambled_chain(&at, m, k);
+        assert!(path_order(to_faer(&kk).as_ref()).is_some());
+        let e = generalized_symmetric(&kk, &mm).unwrap();
+        for (j, w2) in e.omega2.iter().enumerate() {
+            let theta = (2 * j + 1) as f64 * std::f64::consts::PI / (2.0 * (2 * n + 1) as f64);
+            let expected = 4.0 * k / m * theta.sin().powi(2);
+            assert!(
+                (w2 - expected).abs() <= 1e-10 * expected,
+                "mode {j}: {w2} vs {expected}"
+            );
+        }
+        let residual =
+            &kk * &e.shapes - &mm * &e.shapes * DMatrix::from_diagonal(&e.omega2.clone().into());
+        assert!(residual.abs().max() < 1e-8 * 4.0 * k / m);
+        let gram = e.shapes.transpose() * &mm * &e.shapes;
+        assert!((gram - DMatrix::identity(n, n)).abs().max() < 1e-12);
     }
 
     #[test]
