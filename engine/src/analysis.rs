@@ -5,7 +5,9 @@
 use sprung_syntax::ast::ElementKind;
 
 use crate::Checked;
-use crate::assemble::{AssembleError, Assembler, Limits};
+use std::borrow::Cow;
+
+use crate::assemble::{AssembleError, Assembler, Limits, Matrices};
 use crate::corners::{self, Corner};
 use crate::diagnostics::{Code, Diagnostic};
 use crate::model::{End, Model, SystemModel};
@@ -128,17 +130,14 @@ fn analyze_system(
             };
         }
     };
-    let solve = |asm: &mut Assembler<'_>, corner: &Corner| -> Result<ModalResult, String> {
-        let mats = asm
-            .assemble(&corner.deviations)
-            .map_err(|e| e.to_string())?;
-        modes::analyze(&mats, &config.modal).map_err(|e| e.to_string())
-    };
-    let nominal_corner = Corner {
-        deviations: vec![0.0; model.params.len()],
-        ends: Vec::new(),
-    };
-    let nominal = match solve(&mut assembler, &nominal_corner) {
+    let nominal = assembler
+        .assemble(&vec![0.0; model.params.len()])
+        .map_err(|e| e.to_string())
+        .and_then(|mats| {
+            let modal = modes::analyze(&mats, &config.modal).map_err(|e| e.to_string())?;
+            Ok((mats, modal))
+        });
+    let (nominal_mats, nominal) = match nominal {
         Ok(r) => r,
         Err(why) => {
             diags.push(Diagnostic::new(
@@ -186,8 +185,16 @@ fn analyze_system(
         ).with_help("fix some toleranced values, or merge tolerances that move together into one `let`"));
         all_not("the tolerance search is over the work budget")
     } else {
-        evaluate_requirements(model, sys, config, &mut assembler, &nominal, diags)
+        evaluate_requirements(
+            model,
+            sys,
+            config,
+            &mut assembler,
+            (&nominal_mats, &nominal),
+            diags,
+        )
     };
+    drop(nominal_mats);
     for (req, v) in sys.requirements.iter().zip(&verdicts) {
         if v.status == Status::Failed {
             diags.push(Diagnostic::new(
@@ -243,7 +250,7 @@ fn evaluate_requirements(
     sys: &SystemModel,
     config: &Config,
     assembler: &mut Assembler<'_>,
-    nominal: &ModalResult,
+    (nominal_mats, nominal): (&Matrices, &ModalResult),
     diags: &mut Vec<Diagnostic>,
 ) -> Vec<Verdict> {
     let needs_response = sys
@@ -263,16 +270,23 @@ fn evaluate_requirements(
     };
     let mut points: Vec<(Corner, CornerResult)> = Vec::new();
     for corner in corners::corners(model, sys) {
-        let mats = assembler
-            .assemble(&corner.deviations)
-            .map_err(|e| e.to_string());
-        let modal = match (&mats, corner.is_nominal()) {
-            (Ok(_), true) => Ok(nominal.clone()),
-            (Ok(m), false) => modes::analyze(m, &config.modal).map_err(|e| e.to_string()),
-            (Err(e), _) => Err(e.clone()),
+        // The nominal point was solved already: borrow its matrices and modes.
+        let (mats, modal) = if corner.is_nominal() {
+            (Ok(Cow::Borrowed(nominal_mats)), Ok(Cow::Borrowed(nominal)))
+        } else {
+            let mats = assembler
+                .assemble(&corner.deviations)
+                .map_err(|e| e.to_string());
+            let modal = match &mats {
+                Ok(m) => modes::analyze(m, &config.modal)
+                    .map(Cow::Owned)
+                    .map_err(|e| e.to_string()),
+                Err(e) => Err(e.clone()),
+            };
+            (mats.map(Cow::Owned), modal)
         };
-        let modes = modal.as_ref().map(summaries).map_err(Clone::clone);
-        let values = match (&mut inputs, &mats, &modal) {
+        let modes = modal.as_deref().map(summaries).map_err(Clone::clone);
+        let values = match (&mut inputs, mats.as_deref(), modal.as_deref()) {
             (None, _, _) => vec![None; sys.requirements.len()],
             (Some(Err(e)), _, _) => sys
                 .requirements
