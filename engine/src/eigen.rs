@@ -9,8 +9,10 @@
 //! iteration that does not converge) is an [`EigenError`]; the inputs are checked before faer
 //! sees them, so faer's own shape assertions cannot fire.
 
-use faer::linalg::triangular_solve;
-use faer::{Mat, MatRef, Par, Side};
+use faer::diag::{DiagMut, DiagRef};
+use faer::dyn_stack::{MemBuffer, MemStack};
+use faer::linalg::{evd, triangular_solve};
+use faer::{Mat, MatMut, MatRef, Par, Side};
 use nalgebra::{Complex, DMatrix};
 
 pub type Complex64 = Complex<f64>;
@@ -86,6 +88,12 @@ pub fn generalized_symmetric(
     check_square(k)?;
     check_same(k, m)?;
     let n = k.nrows();
+    if n == 0 {
+        return Ok(UndampedEigen {
+            omega2: Vec::new(),
+            shapes: DMatrix::zeros(0, 0),
+        });
+    }
     if is_diagonal(m) {
         let mut s = Vec::with_capacity(n);
         for i in 0..n {
@@ -95,31 +103,47 @@ pub fn generalized_symmetric(
             }
             s.push(mi.sqrt());
         }
-        let a = Mat::from_fn(n, n, |i, j| {
-            // Symmetric by construction: the same expression for (i, j) and (j, i).
+        // L⁻¹ K L⁻ᵀ entry by entry (only the lower triangle is read).
+        let entry = |i: usize, j: usize| {
             let kij = 0.5 * (k[(i, j)] + k[(j, i)]);
             kij / s[i] / s[j]
-        });
-        // `row[i]`: the row of the eigenvector matrix that holds coordinate i.
-        let (omega2, u, row) = match path_order(a.as_ref()) {
+        };
+        // The eigenvectors are written straight into the shapes' storage, then scaled (and
+        // put back in coordinate order) in place: no second n × n matrix.
+        let mut shapes = DMatrix::<f64>::zeros(n, n);
+        let mut omega2 = vec![0.0; n];
+        let mut u = MatMut::from_column_major_slice_mut(shapes.as_mut_slice(), n, n);
+        match path_order(n, |i, j| k[(i, j)] + k[(j, i)] != 0.0) {
             Some(order) => {
-                let (values, u) = tridiagonal(a.as_ref(), &order)?;
-                let mut row = vec![0; n];
-                for (p, &i) in order.iter().enumerate() {
-                    row[i] = p;
+                let diag: Vec<f64> = order.iter().map(|&i| entry(i, i)).collect();
+                let sub: Vec<f64> = (0..n)
+                    .map(|p| match order.get(p + 1) {
+                        // Between two paths the entry is zero, which the solver deflates.
+                        Some(&q) => entry(q.max(order[p]), q.min(order[p])),
+                        None => 0.0,
+                    })
+                    .collect();
+                tridiagonal(&diag, &sub, &mut omega2, u.as_mut())?;
+                // Row p of u holds coordinate order[p].
+                let mut column = vec![0.0; n];
+                for mut col in shapes.column_iter_mut() {
+                    column.copy_from_slice(col.as_slice());
+                    for (p, &i) in order.iter().enumerate() {
+                        col[i] = column[p] / s[i];
+                    }
                 }
-                (values, u, row)
             }
             None => {
-                let evd = a
-                    .self_adjoint_eigen(Side::Lower)
-                    .map_err(|_| EigenError::NoConvergence)?;
-                let values = (0..n).map(|i| evd.S()[i]).collect();
-                (values, evd.U().to_owned(), (0..n).collect())
+                let a = Mat::from_fn(n, n, entry);
+                dense_symmetric(a.as_ref(), &mut omega2, u.as_mut())?;
+                drop(a);
+                for mut col in shapes.column_iter_mut() {
+                    for (x, si) in col.iter_mut().zip(&s) {
+                        *x /= si;
+                    }
+                }
             }
-        };
-        drop(a);
-        let shapes = DMatrix::from_fn(n, n, |i, j| u[(row[i], j)] / s[i]);
+        }
         return Ok(UndampedEigen { omega2, shapes });
     }
     let l = cholesky(m)?;
@@ -140,13 +164,12 @@ pub fn generalized_symmetric(
     })
 }
 
-/// When the off-diagonal nonzeros of the symmetric matrix `a` (lower triangle read) form
-/// disjoint paths, as they do for a chain of masses, an order of the coordinates along those
-/// paths, path after path: in that order `a` is tridiagonal. `None` for any other pattern
-/// (a coordinate with three neighbours, or a cycle). The scan stops at the first coordinate
-/// with a third neighbour, so a dense matrix costs little.
-fn path_order(a: MatRef<'_, f64>) -> Option<Vec<usize>> {
-    let n = a.nrows();
+/// When the off-diagonal nonzeros of an n × n symmetric matrix (`nonzero(i, j)` for i > j)
+/// form disjoint paths, as they do for a chain of masses, an order of the coordinates along
+/// those paths, path after path: in that order the matrix is tridiagonal. `None` for any other
+/// pattern (a coordinate with three neighbours, or a cycle). The scan stops at the first
+/// coordinate with a third neighbour, so a dense matrix costs little.
+fn path_order(n: usize, nonzero: impl Fn(usize, usize) -> bool) -> Option<Vec<usize>> {
     const NONE: usize = usize::MAX;
     let mut nbr = vec![[NONE; 2]; n];
     let link = |nbr: &mut [[usize; 2]], i: usize, j: usize| -> bool {
@@ -159,7 +182,7 @@ fn path_order(a: MatRef<'_, f64>) -> Option<Vec<usize>> {
     };
     for j in 0..n {
         for i in (j + 1)..n {
-            if a[(i, j)] != 0.0 && !(link(&mut nbr, i, j) && link(&mut nbr, j, i)) {
+            if nonzero(i, j) && !(link(&mut nbr, i, j) && link(&mut nbr, j, i)) {
                 return None;
             }
         }
@@ -187,26 +210,18 @@ fn path_order(a: MatRef<'_, f64>) -> Option<Vec<usize>> {
     (order.len() == n).then_some(order)
 }
 
-/// Eigenvalues (ascending) and orthonormal eigenvectors of the symmetric matrix `a`, which is
-/// tridiagonal in the coordinate order `order` (see [`path_order`]): faer's tridiagonal
+/// Eigenvalues (ascending, into `values`) and orthonormal eigenvectors (into `u`, one column
+/// each) of the symmetric tridiagonal matrix with diagonal `diag` and subdiagonal `sub`
+/// (`sub[p]` couples p and p + 1; its last entry is not read): faer's tridiagonal
 /// divide-and-conquer solver, skipping the dense reduction to tridiagonal form and the
 /// back-transformation that the general solver would spend on a matrix already in that form.
-/// The eigenvectors' rows are in the order `order`.
-fn tridiagonal(a: MatRef<'_, f64>, order: &[usize]) -> Result<(Vec<f64>, Mat<f64>), EigenError> {
-    use faer::diag::{DiagMut, DiagRef};
-    use faer::dyn_stack::{MemBuffer, MemStack};
-    use faer::linalg::evd;
-    let n = order.len();
-    let diag: Vec<f64> = order.iter().map(|&i| a[(i, i)]).collect();
-    let sub: Vec<f64> = (0..n)
-        .map(|p| match order.get(p + 1) {
-            // Between two paths the entry is zero, which the solver deflates.
-            Some(&q) => a[(q.max(order[p]), q.min(order[p]))],
-            None => 0.0,
-        })
-        .collect();
-    let mut values = vec![0.0; n];
-    let mut u = Mat::<f64>::zeros(n, n);
+fn tridiagonal(
+    diag: &[f64],
+    sub: &[f64],
+    values: &mut [f64],
+    u: MatMut<'_, f64>,
+) -> Result<(), EigenError> {
+    let n = diag.len();
     let mut buffer = MemBuffer::new(evd::self_adjoint_evd_scratch::<f64>(
         n,
         evd::ComputeEigenvectors::Yes,
@@ -214,16 +229,40 @@ fn tridiagonal(a: MatRef<'_, f64>, order: &[usize]) -> Result<(Vec<f64>, Mat<f64
         Default::default(),
     ));
     evd::tridiagonal_self_adjoint_evd(
-        DiagRef::from_slice(&diag),
-        DiagRef::from_slice(&sub),
-        DiagMut::from_slice_mut(&mut values),
-        Some(u.as_mut()),
+        DiagRef::from_slice(diag),
+        DiagRef::from_slice(sub),
+        DiagMut::from_slice_mut(values),
+        Some(u),
         Par::Seq,
         MemStack::new(&mut buffer),
         Default::default(),
     )
-    .map_err(|_| EigenError::NoConvergence)?;
-    Ok((values, u))
+    .map_err(|_| EigenError::NoConvergence)
+}
+
+/// Eigenvalues (ascending, into `values`) and orthonormal eigenvectors (into `u`) of the
+/// symmetric matrix `a`, lower triangle read: what `Mat::self_adjoint_eigen` does, writing
+/// into the caller's storage.
+fn dense_symmetric(
+    a: MatRef<'_, f64>,
+    values: &mut [f64],
+    u: MatMut<'_, f64>,
+) -> Result<(), EigenError> {
+    let mut buffer = MemBuffer::new(evd::self_adjoint_evd_scratch::<f64>(
+        a.nrows(),
+        evd::ComputeEigenvectors::Yes,
+        Par::Seq,
+        Default::default(),
+    ));
+    evd::self_adjoint_evd(
+        a,
+        DiagMut::from_slice_mut(values),
+        Some(u),
+        Par::Seq,
+        MemStack::new(&mut buffer),
+        Default::default(),
+    )
+    .map_err(|_| EigenError::NoConvergence)
 }
 
 /// Eigenvalues and right eigenvectors of a real square matrix.
@@ -382,7 +421,7 @@ mod tests {
     #[test]
     fn path_order_finds_chains_and_refuses_other_patterns() {
         let (k, _) = scrambled_chain(&[3, 0, 5, 1, 4, 2], 1.0, 1.0);
-        let order = path_order(to_faer(&k).as_ref()).unwrap();
+        let order = path_order(6, |i, j| k[(i, j)] != 0.0).unwrap();
         // Along the order, only neighbours are coupled: tridiagonal.
         for (p, &i) in order.iter().enumerate() {
             for (q, &j) in order.iter().enumerate() {
@@ -397,21 +436,24 @@ mod tests {
             two[(a, b)] = -1.0;
             two[(b, a)] = -1.0;
         }
-        assert_eq!(path_order(to_faer(&two).as_ref()).map(|o| o.len()), Some(5));
+        assert_eq!(
+            path_order(5, |i, j| two[(i, j)] != 0.0).map(|o| o.len()),
+            Some(5)
+        );
         // A coordinate with three neighbours, and a ring: not paths.
         let mut star = DMatrix::<f64>::identity(4, 4);
         for b in 1..4 {
             star[(0, b)] = -1.0;
             star[(b, 0)] = -1.0;
         }
-        assert_eq!(path_order(to_faer(&star).as_ref()), None);
+        assert_eq!(path_order(4, |i, j| star[(i, j)] != 0.0), None);
         let mut ring = DMatrix::<f64>::identity(4, 4);
         for a in 0..4 {
             let b = (a + 1) % 4;
             ring[(a, b)] = -1.0;
             ring[(b, a)] = -1.0;
         }
-        assert_eq!(path_order(to_faer(&ring).as_ref()), None);
+        assert_eq!(path_order(4, |i, j| ring[(i, j)] != 0.0), None);
     }
 
     #[test]
@@ -424,7 +466,7 @@ mod tests {
         let at: Vec<usize> = (0..n).map(|i| (i * 37) % n).collect();
         let (m, k) = (2.0, 5e4);
         let (kk, mm) = scrambled_chain(&at, m, k);
-        assert!(path_order(to_faer(&kk).as_ref()).is_some());
+        assert!(path_order(n, |i, j| kk[(i, j)] != 0.0).is_some());
         let e = generalized_symmetric(&kk, &mm).unwrap();
         for (j, w2) in e.omega2.iter().enumerate() {
             let theta = (2 * j + 1) as f64 * std::f64::consts::PI / (2.0 * (2 * n + 1) as f64);
@@ -461,6 +503,20 @@ mod tests {
             general(&DMatrix::zeros(2, 3)).err(),
             Some(EigenError::Shape)
         );
+    }
+
+    #[test]
+    fn empty_and_one_coordinate_problems() {
+        let e = generalized_symmetric(&DMatrix::zeros(0, 0), &DMatrix::zeros(0, 0)).unwrap();
+        assert!(e.omega2.is_empty() && e.shapes.is_empty());
+        // One mass m = 4 on k = 100: ω² = k/m = 25, φ = 1/√m (mass-normalised).
+        let e = generalized_symmetric(
+            &DMatrix::from_element(1, 1, 100.0),
+            &DMatrix::from_element(1, 1, 4.0),
+        )
+        .unwrap();
+        assert!((e.omega2[0] - 25.0).abs() < 1e-12);
+        assert!((e.shapes[(0, 0)].abs() - 0.5).abs() < 1e-15);
     }
 
     #[test]

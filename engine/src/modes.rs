@@ -359,20 +359,24 @@ fn classical_diagonal(
             return None;
         }
     }
+    let inverse: Vec<f64> = masses.iter().map(|m| 1.0 / m).collect();
     let mut diag = Vec::with_capacity(n);
     let mut bound = 0.0_f64;
     let mut y = vec![0.0; n];
-    for j in 0..n {
-        let phi = shapes.column(j);
+    for phi in shapes.column_iter() {
+        let phi = phi.as_slice();
         y.fill(0.0);
         for &(r, col, v) in &nonzeros {
             y[r] += v * phi[col];
         }
         let dj: f64 = phi.iter().zip(&y).map(|(p, q)| p * q).sum();
-        let off2: f64 = (0..n)
-            .map(|i| {
-                let r = y[i] - dj * masses[i] * phi[i];
-                r * r / masses[i]
+        let off2: f64 = y
+            .iter()
+            .zip(phi)
+            .zip(masses.iter().zip(&inverse))
+            .map(|((yi, pi), (mi, wi))| {
+                let r = yi - dj * mi * pi;
+                r * r * wi
             })
             .sum();
         bound = bound.max(off2.sqrt());
