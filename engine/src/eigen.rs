@@ -113,7 +113,9 @@ pub fn generalized_symmetric(
         let mut shapes = DMatrix::<f64>::zeros(n, n);
         let mut omega2 = vec![0.0; n];
         let mut u = MatMut::from_column_major_slice_mut(shapes.as_mut_slice(), n, n);
-        match path_order(n, |i, j| k[(i, j)] + k[(j, i)] != 0.0) {
+        // A pair whose two entries cancel is still taken as coupled: harmless, its entry in
+        // the tridiagonal matrix is then zero.
+        match path_order(n, |i, j| k[(i, j)] != 0.0) {
             Some(order) => {
                 let diag: Vec<f64> = order.iter().map(|&i| entry(i, i)).collect();
                 let sub: Vec<f64> = (0..n)
@@ -164,8 +166,8 @@ pub fn generalized_symmetric(
     })
 }
 
-/// When the off-diagonal nonzeros of an n × n symmetric matrix (`nonzero(i, j)` for i > j)
-/// form disjoint paths, as they do for a chain of masses, an order of the coordinates along
+/// When the off-diagonal nonzeros of an n × n matrix (`nonzero(i, j)`; i, j coupled when
+/// either (i, j) or (j, i) is nonzero) form disjoint paths, as they do for a chain of masses, an order of the coordinates along
 /// those paths, path after path: in that order the matrix is tridiagonal. `None` for any other
 /// pattern (a coordinate with three neighbours, or a cycle). The scan stops at the first
 /// coordinate with a third neighbour, so a dense matrix costs little.
@@ -180,9 +182,14 @@ fn path_order(n: usize, nonzero: impl Fn(usize, usize) -> bool) -> Option<Vec<us
         }
         true
     };
+    // Both triangles, column by column (contiguous in a column-major matrix): a pair is
+    // linked the first time either of its entries is seen.
     for j in 0..n {
-        for i in (j + 1)..n {
-            if nonzero(i, j) && !(link(&mut nbr, i, j) && link(&mut nbr, j, i)) {
+        for i in 0..n {
+            if i == j || !nonzero(i, j) || nbr[i].contains(&j) {
+                continue;
+            }
+            if !(link(&mut nbr, i, j) && link(&mut nbr, j, i)) {
                 return None;
             }
         }
