@@ -14,7 +14,8 @@
 //!    largest ω) so that every entry is of the order of a frequency, not of its square.
 //!    - If C is the zero matrix, every root is exactly ±iω and every elastic mode `undamped`.
 //!    - Modes i and j are **coupled by damping** when |Dᵢⱼ| > `coupling_tolerance` (1e-10) ×
-//!      max |D|. A mode coupled to no other (every mode, when damping is classical, e.g.
+//!      max |D|. With M diagonal, D is not formed when a bound on each of its columns already
+//!      shows every pair uncoupled (see `classical_diagonal`); only its diagonal is computed. A mode coupled to no other (every mode, when damping is classical, e.g.
 //!      Rayleigh C = αM + βK) spans an exact invariant 2×2 block of the state matrix: its two
 //!      roots are those of s² + Dⱼⱼ s + ωⱼ², solved in closed form by the stable quadratic
 //!      formula. This is exact at critical damping, where the state matrix has a defective
