@@ -5,7 +5,8 @@
 //! formulas, same generator) and times scipy on them.
 //!
 //! Run: `cargo bench -p sprung-engine --bench modes` (add a filter such as `undamped/` or
-//! `/100` after `--`).
+//! `/100` after `--`). `latency_document/` is the language server's latency document
+//! (lsp/tests/latency.rs) from text.
 
 use std::time::Duration;
 
@@ -178,5 +179,57 @@ fn bench_from_text(c: &mut Criterion) {
     group.finish();
 }
 
-criterion_group!(benches, bench, bench_from_text);
+/// The language server's latency document (lsp/tests/latency.rs, the same text): n masses of
+/// 2 kg in a chain of 50 kN/m springs, the first to ground, 3 N·s/m from every mass to ground
+/// (classical damping), one damping requirement; declarations grouped by kind.
+fn latency_text(n: usize) -> String {
+    let mut s = String::from("system chain {\n");
+    for i in 0..n {
+        s.push_str(&format!("  mass m{i} = 2 kg\n"));
+    }
+    s.push_str("  spring s0 between m0 and ground = 50 kN/m\n");
+    for i in 1..n {
+        s.push_str(&format!(
+            "  spring s{i} between m{} and m{i} = 50 kN/m\n",
+            i - 1
+        ));
+    }
+    for i in 0..n {
+        s.push_str(&format!(
+            "  damper d{i} between m{i} and ground = 3 N*s/m\n"
+        ));
+    }
+    s.push_str("  require damping >= 0.0001\n}\n");
+    s
+}
+
+/// The latency document at 100 and 1,000 masses: the checker alone, the analysis alone (of an
+/// already checked file), and the undamped modes alone (from its assembled matrices).
+fn bench_latency_document(c: &mut Criterion) {
+    let mut group = c.benchmark_group("latency_document");
+    group
+        .sample_size(10)
+        .warm_up_time(Duration::from_millis(500));
+    for n in [100, 1000] {
+        let text = latency_text(n);
+        let checked = sprung_engine::check(&text);
+        let mats =
+            sprung_engine::assemble::assemble(&checked.model, &checked.model.systems[0], &[])
+                .expect("the latency document assembles");
+        group.bench_with_input(BenchmarkId::new("check", n), &text, |b, t| {
+            b.iter(|| sprung_engine::check(t))
+        });
+        group.bench_with_input(BenchmarkId::new("analyze", n), &checked, |b, c| {
+            b.iter(|| {
+                sprung_engine::analysis::analyze(c, &sprung_engine::analysis::Config::default())
+            })
+        });
+        group.bench_with_input(BenchmarkId::new("undamped", n), &mats, |b, m| {
+            b.iter(|| eigen::generalized_symmetric(&m.k, &m.m).unwrap())
+        });
+    }
+    group.finish();
+}
+
+criterion_group!(benches, bench, bench_from_text, bench_latency_document);
 criterion_main!(benches);

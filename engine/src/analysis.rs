@@ -5,7 +5,9 @@
 use sprung_syntax::ast::ElementKind;
 
 use crate::Checked;
-use crate::assemble::{AssembleError, Assembler, Limits};
+use std::borrow::Cow;
+
+use crate::assemble::{AssembleError, Assembler, Limits, Matrices};
 use crate::corners::{self, Corner};
 use crate::diagnostics::{Code, Diagnostic};
 use crate::model::{End, Model, SystemModel};
@@ -128,17 +130,14 @@ fn analyze_system(
             };
         }
     };
-    let solve = |asm: &mut Assembler<'_>, corner: &Corner| -> Result<ModalResult, String> {
-        let mats = asm
-            .assemble(&corner.deviations)
-            .map_err(|e| e.to_string())?;
-        modes::analyze(&mats, &config.modal).map_err(|e| e.to_string())
-    };
-    let nominal_corner = Corner {
-        deviations: vec![0.0; model.params.len()],
-        ends: Vec::new(),
-    };
-    let nominal = match solve(&mut assembler, &nominal_corner) {
+    let nominal = assembler
+        .assemble(&vec![0.0; model.params.len()])
+        .map_err(|e| e.to_string())
+        .and_then(|mats| {
+            let modal = modes::analyze(&mats, &config.modal).map_err(|e| e.to_string())?;
+            Ok((mats, modal))
+        });
+    let (nominal_mats, nominal) = match nominal {
         Ok(r) => r,
         Err(why) => {
             diags.push(Diagnostic::new(
@@ -186,8 +185,16 @@ fn analyze_system(
         ).with_help("fix some toleranced values, or merge tolerances that move together into one `let`"));
         all_not("the tolerance search is over the work budget")
     } else {
-        evaluate_requirements(model, sys, config, &mut assembler, &nominal, diags)
+        evaluate_requirements(
+            model,
+            sys,
+            config,
+            &mut assembler,
+            (&nominal_mats, &nominal),
+            diags,
+        )
     };
+    drop(nominal_mats);
     for (req, v) in sys.requirements.iter().zip(&verdicts) {
         if v.status == Status::Failed {
             diags.push(Diagnostic::new(
@@ -217,18 +224,21 @@ fn needs_transient(sys: &SystemModel) -> bool {
 }
 
 /// The estimated work of evaluating the system's requirements at every corner: an
-/// eigendecomposition of the 2n-square state matrix per corner (about 10 (2n)^3), and for a
-/// transient requirement a simulation of up to a few thousand steps of a 2n-square
-/// propagation.
+/// eigendecomposition of the 2n-square state matrix per corner other than nominal (about
+/// 10 (2n)^3; the nominal modes are computed before the search, whatever its size), and for a
+/// transient requirement, at every point nominal included, a simulation of up to a few
+/// thousand steps of a 2n-square propagation. A system without tolerances (nominal alone) and
+/// without transient requirements costs nothing more.
 fn search_work(sys: &SystemModel) -> Option<f64> {
     let n = sys.dofs.len() as f64;
-    let per_corner = 10.0 * (2.0 * n).powi(3)
-        + if needs_transient(sys) {
-            4000.0 * (2.0 * n).powi(2) * 2.0 * n
-        } else {
-            0.0
-        };
-    Some(corners::count(sys) as f64 * per_corner)
+    let modal = 10.0 * (2.0 * n).powi(3);
+    let transient = if needs_transient(sys) {
+        4000.0 * (2.0 * n).powi(2) * 2.0 * n
+    } else {
+        0.0
+    };
+    let points = corners::count(sys) as f64;
+    Some((points - 1.0) * modal + points * transient)
 }
 
 /// What one corner gives every requirement: the modes for the modal subjects, the measured
@@ -243,7 +253,7 @@ fn evaluate_requirements(
     sys: &SystemModel,
     config: &Config,
     assembler: &mut Assembler<'_>,
-    nominal: &ModalResult,
+    (nominal_mats, nominal): (&Matrices, &ModalResult),
     diags: &mut Vec<Diagnostic>,
 ) -> Vec<Verdict> {
     let needs_response = sys
@@ -263,16 +273,23 @@ fn evaluate_requirements(
     };
     let mut points: Vec<(Corner, CornerResult)> = Vec::new();
     for corner in corners::corners(model, sys) {
-        let mats = assembler
-            .assemble(&corner.deviations)
-            .map_err(|e| e.to_string());
-        let modal = match (&mats, corner.is_nominal()) {
-            (Ok(_), true) => Ok(nominal.clone()),
-            (Ok(m), false) => modes::analyze(m, &config.modal).map_err(|e| e.to_string()),
-            (Err(e), _) => Err(e.clone()),
+        // The nominal point was solved already: borrow its matrices and modes.
+        let (mats, modal) = if corner.is_nominal() {
+            (Ok(Cow::Borrowed(nominal_mats)), Ok(Cow::Borrowed(nominal)))
+        } else {
+            let mats = assembler
+                .assemble(&corner.deviations)
+                .map_err(|e| e.to_string());
+            let modal = match &mats {
+                Ok(m) => modes::analyze(m, &config.modal)
+                    .map(Cow::Owned)
+                    .map_err(|e| e.to_string()),
+                Err(e) => Err(e.clone()),
+            };
+            (mats.map(Cow::Owned), modal)
         };
-        let modes = modal.as_ref().map(summaries).map_err(Clone::clone);
-        let values = match (&mut inputs, &mats, &modal) {
+        let modes = modal.as_deref().map(summaries).map_err(Clone::clone);
+        let values = match (&mut inputs, mats.as_deref(), modal.as_deref()) {
             (None, _, _) => vec![None; sys.requirements.len()],
             (Some(Err(e)), _, _) => sys
                 .requirements

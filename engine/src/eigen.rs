@@ -9,8 +9,10 @@
 //! iteration that does not converge) is an [`EigenError`]; the inputs are checked before faer
 //! sees them, so faer's own shape assertions cannot fire.
 
-use faer::linalg::triangular_solve;
-use faer::{Mat, MatRef, Par, Side};
+use faer::diag::{DiagMut, DiagRef};
+use faer::dyn_stack::{MemBuffer, MemStack};
+use faer::linalg::{evd, triangular_solve};
+use faer::{Mat, MatMut, MatRef, Par, Side};
 use nalgebra::{Complex, DMatrix};
 
 pub type Complex64 = Complex<f64>;
@@ -76,7 +78,9 @@ pub fn symmetric(a: &DMatrix<f64>) -> Result<(Vec<f64>, DMatrix<f64>), EigenErro
 
 /// Solves the generalized symmetric problem K φ = ω² M φ with M positive definite: Cholesky
 /// M = L Lᵀ, a symmetric eigensolver on L⁻¹ K L⁻ᵀ, and φ = L⁻ᵀ u. A diagonal M (what assembly
-/// produces) takes the same route with L = diag(√mᵢ), done by scaling.
+/// produces) takes the same route with L = diag(√mᵢ), done by scaling; then, when the springs
+/// join the coordinates in chains (see [`path_order`]), L⁻¹ K L⁻ᵀ is tridiagonal after a
+/// reordering and goes straight to the tridiagonal solver.
 pub fn generalized_symmetric(
     k: &DMatrix<f64>,
     m: &DMatrix<f64>,
@@ -84,6 +88,12 @@ pub fn generalized_symmetric(
     check_square(k)?;
     check_same(k, m)?;
     let n = k.nrows();
+    if n == 0 {
+        return Ok(UndampedEigen {
+            omega2: Vec::new(),
+            shapes: DMatrix::zeros(0, 0),
+        });
+    }
     if is_diagonal(m) {
         let mut s = Vec::with_capacity(n);
         for i in 0..n {
@@ -93,13 +103,49 @@ pub fn generalized_symmetric(
             }
             s.push(mi.sqrt());
         }
-        let a = DMatrix::from_fn(n, n, |i, j| {
-            // Symmetric by construction: the same expression for (i, j) and (j, i).
+        // L⁻¹ K L⁻ᵀ entry by entry (only the lower triangle is read).
+        let entry = |i: usize, j: usize| {
             let kij = 0.5 * (k[(i, j)] + k[(j, i)]);
             kij / s[i] / s[j]
-        });
-        let (omega2, u) = symmetric(&a)?;
-        let shapes = DMatrix::from_fn(n, n, |i, j| u[(i, j)] / s[i]);
+        };
+        // The eigenvectors are written straight into the shapes' storage, then scaled (and
+        // put back in coordinate order) in place: no second n × n matrix.
+        let mut shapes = DMatrix::<f64>::zeros(n, n);
+        let mut omega2 = vec![0.0; n];
+        let mut u = MatMut::from_column_major_slice_mut(shapes.as_mut_slice(), n, n);
+        // A pair whose two entries cancel is still taken as coupled: harmless, its entry in
+        // the tridiagonal matrix is then zero.
+        match path_order(n, |i, j| k[(i, j)] != 0.0) {
+            Some(order) => {
+                let diag: Vec<f64> = order.iter().map(|&i| entry(i, i)).collect();
+                let sub: Vec<f64> = (0..n)
+                    .map(|p| match order.get(p + 1) {
+                        // Between two paths the entry is zero, which the solver deflates.
+                        Some(&q) => entry(q.max(order[p]), q.min(order[p])),
+                        None => 0.0,
+                    })
+                    .collect();
+                tridiagonal(&diag, &sub, &mut omega2, u.as_mut())?;
+                // Row p of u holds coordinate order[p].
+                let mut column = vec![0.0; n];
+                for mut col in shapes.column_iter_mut() {
+                    column.copy_from_slice(col.as_slice());
+                    for (p, &i) in order.iter().enumerate() {
+                        col[i] = column[p] / s[i];
+                    }
+                }
+            }
+            None => {
+                let a = Mat::from_fn(n, n, entry);
+                dense_symmetric(a.as_ref(), &mut omega2, u.as_mut())?;
+                drop(a);
+                for mut col in shapes.column_iter_mut() {
+                    for (x, si) in col.iter_mut().zip(&s) {
+                        *x /= si;
+                    }
+                }
+            }
+        }
         return Ok(UndampedEigen { omega2, shapes });
     }
     let l = cholesky(m)?;
@@ -118,6 +164,112 @@ pub fn generalized_symmetric(
         omega2: (0..n).map(|i| evd.S()[i]).collect(),
         shapes: from_faer(phi.as_ref()),
     })
+}
+
+/// When the off-diagonal nonzeros of an n × n matrix (`nonzero(i, j)`; i, j coupled when
+/// either (i, j) or (j, i) is nonzero) form disjoint paths, as they do for a chain of masses, an order of the coordinates along
+/// those paths, path after path: in that order the matrix is tridiagonal. `None` for any other
+/// pattern (a coordinate with three neighbours, or a cycle). The scan stops at the first
+/// coordinate with a third neighbour, so a dense matrix costs little.
+fn path_order(n: usize, nonzero: impl Fn(usize, usize) -> bool) -> Option<Vec<usize>> {
+    const NONE: usize = usize::MAX;
+    let mut nbr = vec![[NONE; 2]; n];
+    let link = |nbr: &mut [[usize; 2]], i: usize, j: usize| -> bool {
+        match nbr[i] {
+            [NONE, _] => nbr[i][0] = j,
+            [_, NONE] => nbr[i][1] = j,
+            _ => return false,
+        }
+        true
+    };
+    // Both triangles, column by column (contiguous in a column-major matrix): a pair is
+    // linked the first time either of its entries is seen.
+    for j in 0..n {
+        for i in 0..n {
+            if i == j || !nonzero(i, j) || nbr[i].contains(&j) {
+                continue;
+            }
+            if !(link(&mut nbr, i, j) && link(&mut nbr, j, i)) {
+                return None;
+            }
+        }
+    }
+    let mut order = Vec::with_capacity(n);
+    let mut seen = vec![false; n];
+    for start in 0..n {
+        // Walk each path from one of its ends (a coordinate with at most one neighbour).
+        if seen[start] || nbr[start][1] != NONE {
+            continue;
+        }
+        let (mut prev, mut at) = (NONE, start);
+        while at != NONE && !seen[at] {
+            seen[at] = true;
+            order.push(at);
+            let next = if nbr[at][0] != prev {
+                nbr[at][0]
+            } else {
+                nbr[at][1]
+            };
+            (prev, at) = (at, next);
+        }
+    }
+    // Coordinates left unvisited lie on a cycle.
+    (order.len() == n).then_some(order)
+}
+
+/// Eigenvalues (ascending, into `values`) and orthonormal eigenvectors (into `u`, one column
+/// each) of the symmetric tridiagonal matrix with diagonal `diag` and subdiagonal `sub`
+/// (`sub[p]` couples p and p + 1; its last entry is not read): faer's tridiagonal
+/// divide-and-conquer solver, skipping the dense reduction to tridiagonal form and the
+/// back-transformation that the general solver would spend on a matrix already in that form.
+fn tridiagonal(
+    diag: &[f64],
+    sub: &[f64],
+    values: &mut [f64],
+    u: MatMut<'_, f64>,
+) -> Result<(), EigenError> {
+    let n = diag.len();
+    let mut buffer = MemBuffer::new(evd::self_adjoint_evd_scratch::<f64>(
+        n,
+        evd::ComputeEigenvectors::Yes,
+        Par::Seq,
+        Default::default(),
+    ));
+    evd::tridiagonal_self_adjoint_evd(
+        DiagRef::from_slice(diag),
+        DiagRef::from_slice(sub),
+        DiagMut::from_slice_mut(values),
+        Some(u),
+        Par::Seq,
+        MemStack::new(&mut buffer),
+        Default::default(),
+    )
+    .map_err(|_| EigenError::NoConvergence)
+}
+
+/// Eigenvalues (ascending, into `values`) and orthonormal eigenvectors (into `u`) of the
+/// symmetric matrix `a`, lower triangle read: what `Mat::self_adjoint_eigen` does, writing
+/// into the caller's storage.
+fn dense_symmetric(
+    a: MatRef<'_, f64>,
+    values: &mut [f64],
+    u: MatMut<'_, f64>,
+) -> Result<(), EigenError> {
+    let mut buffer = MemBuffer::new(evd::self_adjoint_evd_scratch::<f64>(
+        a.nrows(),
+        evd::ComputeEigenvectors::Yes,
+        Par::Seq,
+        Default::default(),
+    ));
+    evd::self_adjoint_evd(
+        a,
+        DiagMut::from_slice_mut(values),
+        Some(u),
+        Par::Seq,
+        MemStack::new(&mut buffer),
+        Default::default(),
+    )
+    .map_err(|_| EigenError::NoConvergence)
 }
 
 /// Eigenvalues and right eigenvectors of a real square matrix.
@@ -253,6 +405,91 @@ mod tests {
         assert!((gram - DMatrix::identity(2, 2)).abs().max() < 1e-12);
     }
 
+    /// A fixed–free chain of `n` equal masses whose coordinate i sits at position `at[i]` along
+    /// the chain (position 0 is the one on the spring to ground).
+    fn scrambled_chain(at: &[usize], m: f64, k: f64) -> (DMatrix<f64>, DMatrix<f64>) {
+        let n = at.len();
+        let mut pos_to_dof = vec![0; n];
+        for (i, &p) in at.iter().enumerate() {
+            pos_to_dof[p] = i;
+        }
+        let mut kk = DMatrix::zeros(n, n);
+        kk[(pos_to_dof[0], pos_to_dof[0])] += k;
+        for p in 1..n {
+            let (a, b) = (pos_to_dof[p - 1], pos_to_dof[p]);
+            kk[(a, a)] += k;
+            kk[(b, b)] += k;
+            kk[(a, b)] -= k;
+            kk[(b, a)] -= k;
+        }
+        (kk, DMatrix::from_diagonal_element(n, n, m))
+    }
+
+    #[test]
+    fn path_order_finds_chains_and_refuses_other_patterns() {
+        let (k, _) = scrambled_chain(&[3, 0, 5, 1, 4, 2], 1.0, 1.0);
+        let order = path_order(6, |i, j| k[(i, j)] != 0.0).unwrap();
+        // Along the order, only neighbours are coupled: tridiagonal.
+        for (p, &i) in order.iter().enumerate() {
+            for (q, &j) in order.iter().enumerate() {
+                if p.abs_diff(q) > 1 {
+                    assert_eq!(k[(i, j)], 0.0);
+                }
+            }
+        }
+        // Two separate chains and a lone coordinate: still paths.
+        let mut two = DMatrix::<f64>::identity(5, 5);
+        for (a, b) in [(0, 3), (1, 4)] {
+            two[(a, b)] = -1.0;
+            two[(b, a)] = -1.0;
+        }
+        assert_eq!(
+            path_order(5, |i, j| two[(i, j)] != 0.0).map(|o| o.len()),
+            Some(5)
+        );
+        // A coordinate with three neighbours, and a ring: not paths.
+        let mut star = DMatrix::<f64>::identity(4, 4);
+        for b in 1..4 {
+            star[(0, b)] = -1.0;
+            star[(b, 0)] = -1.0;
+        }
+        assert_eq!(path_order(4, |i, j| star[(i, j)] != 0.0), None);
+        let mut ring = DMatrix::<f64>::identity(4, 4);
+        for a in 0..4 {
+            let b = (a + 1) % 4;
+            ring[(a, b)] = -1.0;
+            ring[(b, a)] = -1.0;
+        }
+        assert_eq!(path_order(4, |i, j| ring[(i, j)] != 0.0), None);
+    }
+
+    #[test]
+    fn scrambled_chain_matches_the_closed_form_through_the_tridiagonal_route() {
+        // Fixed–free chain of N equal masses (standard closed form for the discrete chain,
+        // from memory): ωj = 2√(k/m)·sin((2j−1)π/(2(2N+1))), j = 1..N. Coordinates declared
+        // out of chain order, so the reordering is exercised; N = 150 is above faer's
+        // divide-and-conquer threshold (128), so its recursion is exercised too.
+        let n = 150;
+        let at: Vec<usize> = (0..n).map(|i| (i * 37) % n).collect();
+        let (m, k) = (2.0, 5e4);
+        let (kk, mm) = scrambled_chain(&at, m, k);
+        assert!(path_order(n, |i, j| kk[(i, j)] != 0.0).is_some());
+        let e = generalized_symmetric(&kk, &mm).unwrap();
+        for (j, w2) in e.omega2.iter().enumerate() {
+            let theta = (2 * j + 1) as f64 * std::f64::consts::PI / (2.0 * (2 * n + 1) as f64);
+            let expected = 4.0 * k / m * theta.sin().powi(2);
+            assert!(
+                (w2 - expected).abs() <= 1e-10 * expected,
+                "mode {j}: {w2} vs {expected}"
+            );
+        }
+        let residual =
+            &kk * &e.shapes - &mm * &e.shapes * DMatrix::from_diagonal(&e.omega2.clone().into());
+        assert!(residual.abs().max() < 1e-8 * 4.0 * k / m);
+        let gram = e.shapes.transpose() * &mm * &e.shapes;
+        assert!((gram - DMatrix::identity(n, n)).abs().max() < 1e-12);
+    }
+
     #[test]
     fn indefinite_mass_and_bad_entries_are_errors() {
         let m = DMatrix::from_row_slice(2, 2, &[1.0, 2.0, 2.0, 1.0]);
@@ -273,6 +510,20 @@ mod tests {
             general(&DMatrix::zeros(2, 3)).err(),
             Some(EigenError::Shape)
         );
+    }
+
+    #[test]
+    fn empty_and_one_coordinate_problems() {
+        let e = generalized_symmetric(&DMatrix::zeros(0, 0), &DMatrix::zeros(0, 0)).unwrap();
+        assert!(e.omega2.is_empty() && e.shapes.is_empty());
+        // One mass m = 4 on k = 100: ω² = k/m = 25, φ = 1/√m (mass-normalised).
+        let e = generalized_symmetric(
+            &DMatrix::from_element(1, 1, 100.0),
+            &DMatrix::from_element(1, 1, 4.0),
+        )
+        .unwrap();
+        assert!((e.omega2[0] - 25.0).abs() < 1e-12);
+        assert!((e.shapes[(0, 0)].abs() - 0.5).abs() < 1e-15);
     }
 
     #[test]

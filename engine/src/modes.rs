@@ -14,7 +14,8 @@
 //!    largest ω) so that every entry is of the order of a frequency, not of its square.
 //!    - If C is the zero matrix, every root is exactly ±iω and every elastic mode `undamped`.
 //!    - Modes i and j are **coupled by damping** when |Dᵢⱼ| > `coupling_tolerance` (1e-10) ×
-//!      max |D|. A mode coupled to no other (every mode, when damping is classical, e.g.
+//!      max |D|. With M diagonal, D is not formed when a bound on each of its columns already
+//!      shows every pair uncoupled (see `classical_diagonal`); only its diagonal is computed. A mode coupled to no other (every mode, when damping is classical, e.g.
 //!      Rayleigh C = αM + βK) spans an exact invariant 2×2 block of the state matrix: its two
 //!      roots are those of s² + Dⱼⱼ s + ωⱼ², solved in closed form by the stable quadratic
 //!      formula. This is exact at critical damping, where the state matrix has a defective
@@ -243,6 +244,14 @@ pub fn analyze(mats: &Matrices, config: &ModalConfig) -> Result<ModalResult, Mod
         for j in 0..n {
             pairs[j] = Some((quadratic_roots(0.0, omega2[j]), 1.0));
         }
+    } else if let Some(diag) = (config.method == DampedMethod::Auto)
+        .then(|| classical_diagonal(&shapes, &mats.c, &mats.m, config.coupling_tolerance))
+        .flatten()
+    {
+        damping = DampingKind::Classical;
+        for j in 0..n {
+            pairs[j] = Some((quadratic_roots(diag[j], omega2[j]), 1.0));
+        }
     } else {
         let d = eigen::congruence(&shapes, &mats.c)?;
         let d = DMatrix::from_fn(n, n, |i, j| 0.5 * (d[(i, j)] + d[(j, i)]));
@@ -311,6 +320,71 @@ fn quadratic_roots(c: f64, k: f64) -> [Complex64; 2] {
             [Complex64::new(q, 0.0), Complex64::new(k / q, 0.0)]
         }
     }
+}
+
+/// The diagonal of D = Φᵀ C Φ, when the damping is classical by the coupling test of step 2
+/// (every |Dᵢⱼ|, i ≠ j, at most `tol` × max |D|), found without forming D: `None` when that
+/// cannot be shown this way, and then D is formed and tested entry by entry.
+///
+/// With M diagonal and Φ mass-normalised (Φᵀ M Φ = I, so Φ Φᵀ = M⁻¹), let dⱼ = φⱼᵀ C φⱼ and
+/// rⱼ = C φⱼ − dⱼ M φⱼ. Then Dᵢⱼ = φᵢᵀ rⱼ for i ≠ j and φⱼᵀ rⱼ = 0, so the off-diagonal part of
+/// column j has Euclidean norm ‖Φᵀ rⱼ‖ = √(rⱼᵀ M⁻¹ rⱼ), a bound on each of its entries; and
+/// max |dⱼ| ≤ max |D|. When every column's bound is within `tol` × max |dⱼ|, every entry passes
+/// the test. C is applied through its nonzero entries (a damper touches at most four), so the
+/// cost is about n × (nonzeros of C + 3n) instead of the two dense n³ products of Φᵀ C Φ.
+fn classical_diagonal(
+    shapes: &DMatrix<f64>,
+    c: &DMatrix<f64>,
+    m: &DMatrix<f64>,
+    tol: f64,
+) -> Option<Vec<f64>> {
+    let n = shapes.nrows();
+    let mut masses = Vec::with_capacity(n);
+    for j in 0..n {
+        for i in 0..n {
+            if i != j && m[(i, j)] != 0.0 {
+                return None;
+            }
+        }
+        masses.push(m[(j, j)]);
+    }
+    let mut nonzeros = Vec::new();
+    for j in 0..n {
+        for i in 0..n {
+            if c[(i, j)] != 0.0 {
+                nonzeros.push((i, j, c[(i, j)]));
+            }
+        }
+        // A dense C gains nothing from this route.
+        if nonzeros.len() > n * n / 8 + 16 {
+            return None;
+        }
+    }
+    let inverse: Vec<f64> = masses.iter().map(|m| 1.0 / m).collect();
+    let mut diag = Vec::with_capacity(n);
+    let mut bound = 0.0_f64;
+    let mut y = vec![0.0; n];
+    for phi in shapes.column_iter() {
+        let phi = phi.as_slice();
+        y.fill(0.0);
+        for &(r, col, v) in &nonzeros {
+            y[r] += v * phi[col];
+        }
+        let dj: f64 = phi.iter().zip(&y).map(|(p, q)| p * q).sum();
+        let off2: f64 = y
+            .iter()
+            .zip(phi)
+            .zip(masses.iter().zip(&inverse))
+            .map(|((yi, pi), (mi, wi))| {
+                let r = yi - dj * mi * pi;
+                r * r * wi
+            })
+            .sum();
+        bound = bound.max(off2.sqrt());
+        diag.push(dj);
+    }
+    let dmax = diag.iter().fold(0.0_f64, |a, x| a.max(x.abs()));
+    (dmax > 0.0 && bound.is_finite() && bound <= tol * dmax).then_some(diag)
 }
 
 /// Connected components of the graph "|Dᵢⱼ| > tol × max |D|", each sorted, in order of their
@@ -608,6 +682,39 @@ mod tests {
         // Negative damping on a free mass: s² − 3s.
         let r = quadratic_roots(-3.0, 0.0);
         assert_eq!([r[0].re, r[1].re], [3.0, 0.0]);
+    }
+
+    #[test]
+    fn classical_damping_is_recognised_without_forming_d() {
+        // A chain of unequal masses: M = diag(1, 2, 3), springs 100 N/m to ground and between
+        // neighbours. Rayleigh damping C = αM + βK gives D = αI + βΩ² (Φᵀ M Φ = I, Φᵀ K Φ = Ω²).
+        let m = DMatrix::from_diagonal(&DVector::from_vec(vec![1.0, 2.0, 3.0]));
+        let k = DMatrix::from_row_slice(
+            3,
+            3,
+            &[
+                200.0, -100.0, 0.0, -100.0, 200.0, -100.0, 0.0, -100.0, 100.0,
+            ],
+        );
+        let und = eigen::generalized_symmetric(&k, &m).unwrap();
+        let (alpha, beta) = (0.3, 0.002);
+        let c = &m * alpha + &k * beta;
+        let diag = classical_diagonal(&und.shapes, &c, &m, 1e-10).unwrap();
+        for (d, w2) in diag.iter().zip(&und.omega2) {
+            assert!((d - (alpha + beta * w2)).abs() < 1e-12);
+        }
+        // One damper at the free end couples the modes: not shown classical, D is formed.
+        let mut c = DMatrix::zeros(3, 3);
+        c[(2, 2)] = 5.0;
+        assert_eq!(classical_diagonal(&und.shapes, &c, &m, 1e-10), None);
+        // A full mass matrix is not handled here either.
+        let mut full = m.clone();
+        full[(0, 1)] = 0.1;
+        full[(1, 0)] = 0.1;
+        assert_eq!(
+            classical_diagonal(&und.shapes, &(&m * alpha), &full, 1e-10),
+            None
+        );
     }
 
     #[test]
