@@ -78,6 +78,47 @@ async fn latency_by_size() {
     }
 }
 
+/// The first stage alone: a unit error toggled in a small second system while the chain is
+/// re-analyzed on every edit. Times `didChange` to the first `publishDiagnostics`, which comes
+/// from the checker's stage, before the chain's analysis is done.
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+#[ignore = "a measurement; run with --ignored --nocapture"]
+async fn checker_diagnostics_latency_by_size() {
+    for (n, edits) in [(10usize, 60), (100, 40), (1000, 16)] {
+        let uri = format!("file:///unit{n}.sprung");
+        let mut text = chain(n);
+        text.push_str("system spare {\n  mass b = 1 kg\n  let wrong = 3 kg + 2 kg\n}\n");
+        let line = text.lines().count() as u32 - 2;
+        let mut c = Client::utf16().await;
+        c.open(&uri, &text).await;
+        c.diagnostics(&uri).await;
+        let mut times = Vec::new();
+        for e in 0..edits {
+            let unit = if e % 2 == 0 { "m " } else { "kg" };
+            let t = Instant::now();
+            c.change(
+                &uri,
+                2 + e,
+                json!([{ "range": { "start": { "line": line, "character": 23 }, "end": { "line": line, "character": 25 } }, "text": unit }]),
+            )
+            .await;
+            let d = c.diagnostics(&uri).await;
+            times.push(t.elapsed());
+            let has_error = d["diagnostics"]
+                .as_array()
+                .is_some_and(|a| a.iter().any(|d| d["code"] == "SP303"));
+            assert_eq!(has_error, e % 2 == 0, "{d}");
+            // Let the chain's analysis finish so the next edit starts from a quiet server.
+            c.hints(&uri).await;
+        }
+        eprintln!(
+            "{n:>5} dof: checker diagnostics p50 {:?} p95 {:?}",
+            pct(&mut times, 0.5),
+            pct(&mut times, 0.95)
+        );
+    }
+}
+
 #[test]
 #[ignore = "a measurement; run with --ignored --nocapture"]
 fn where_the_time_goes_at_1000_dof() {

@@ -24,8 +24,10 @@ Usage:
     response_reference.py --compare A B      compare two fixture folders; exit 1 if they differ
 
 The models come from Python's own `random` (stable across versions), so the matrices are
-reproducible exactly; computed values are compared by --compare to 1e-12 relative to the
-largest magnitude of their series, since a BLAS may round differently on another processor.
+reproducible exactly, and the sample frequencies and times are rounded to 12 figures so they are
+too; computed values are compared by --compare to 1e-10 relative to the largest magnitude of
+their series (1e-9 for signal.freqresp), since a BLAS may round differently on another
+processor.
 """
 
 import os
@@ -117,6 +119,10 @@ def cplx(z):
 def reference(n, m, c, k, j, x0, v0):
     a, b, cm = state_space(m, c, k, j)
     wn = np.sqrt(scipy.linalg.eigh(k, m, eigvals_only=True))
+    # The sample points are inputs: rounded to 12 figures, so that another processor's BLAS,
+    # which rounds the eigenvalues differently in the last bits, samples the same points
+    # (near a resonance a last-bit shift of the frequency moves the response by 1e-9).
+    wn = np.array([float(f"{w:.12g}") for w in wn])
     omegas = np.geomspace(wn.min() / 3.0, wn.max() * 3.0, FREQUENCIES)
     omegas = np.sort(np.concatenate([omegas, wn]))
     frequency = []
@@ -132,7 +138,7 @@ def reference(n, m, c, k, j, x0, v0):
             for i, z in enumerate(h):
                 signal[i][out] = cplx(z)
     sys_all = scipy.signal.StateSpace(a, b, cm, np.zeros((n, 1)))
-    times = np.linspace(0.0, 3.0 * 2.0 * np.pi / wn.min(), TIMES)
+    times = np.linspace(0.0, float(f"{3.0 * 2.0 * np.pi / wn.min():.12g}"), TIMES)
     _, step = scipy.signal.step(sys_all, T=times)
     _, impulse = scipy.signal.impulse(sys_all, T=times)
     u = np.zeros_like(times)
@@ -179,6 +185,12 @@ def generate(out):
 
 EXACT = ("M", "C", "K", "dofs", "input", "x0", "v0", "seed", "numpy", "scipy", "omegas", "times")
 SERIES = ("frequency", "signal_freqresp", "step", "impulse", "initial")
+# Relative to the largest magnitude of the series. The same inputs on another processor's BLAS
+# were seen to differ by up to 2.4e-12 (time responses) and 3.6e-11 (signal.freqresp, which
+# goes through zeros and poles); the limits leave room for that and stay far below what the
+# Rust tests assert against these fixtures (engine/tests/response_reference.rs).
+TOLERANCE = {"signal_freqresp": 1e-9}
+DEFAULT_TOLERANCE = 1e-10
 
 
 def compare(a, b):
@@ -208,8 +220,9 @@ def compare(a, b):
                 problems.append(f"{name}: {key} has a different shape")
                 continue
             scale = max(np.max(np.abs(xa)), 1e-300)
-            if np.max(np.abs(xa - xb)) > 1e-12 * scale:
-                problems.append(f"{name}: {key} differs beyond 1e-12")
+            tol = TOLERANCE.get(key, DEFAULT_TOLERANCE)
+            if np.max(np.abs(xa - xb)) > tol * scale:
+                problems.append(f"{name}: {key} differs beyond {tol:g}")
     return problems
 
 
