@@ -3,7 +3,7 @@
 
 use std::collections::HashMap;
 
-use sprung_syntax::ast::{Comparison, Drive, Expr, ExprKind, File, Item, StatementKind, Subject};
+use sprung_syntax::ast::{Expr, ExprKind, File, Item};
 
 use crate::diagnostics::ExpectedUnit;
 use crate::dim::Dim;
@@ -56,77 +56,16 @@ fn file_exprs(file: &File) -> Vec<&Expr> {
     let mut out = Vec::new();
     for item in &file.items {
         match item {
-            Item::Let(l) => {
-                out.push(&l.value.expr);
-                out.extend(l.value.tolerance.as_ref());
-            }
+            Item::Let(l) => l.value.push_exprs(&mut out),
             Item::System(s) => {
                 for st in &s.statements {
-                    statement_exprs(&st.kind, &mut out);
+                    st.kind.push_exprs(&mut out);
                 }
             }
             Item::Use(_) => {}
         }
     }
     out
-}
-
-fn statement_exprs<'a>(st: &'a StatementKind, out: &mut Vec<&'a Expr>) {
-    let value = |v: &'a sprung_syntax::ast::Value, out: &mut Vec<&'a Expr>| {
-        out.push(&v.expr);
-        out.extend(v.tolerance.as_ref());
-    };
-    match st {
-        StatementKind::Let(l) => value(&l.value, out),
-        StatementKind::Node { value: v, .. }
-        | StatementKind::Element { value: v, .. }
-        | StatementKind::Gravity { value: v } => value(v, out),
-        StatementKind::Drive { drive, .. } => match drive {
-            Drive::Harmonic {
-                amplitude,
-                frequency,
-            } => {
-                value(amplitude, out);
-                value(frequency, out);
-            }
-            Drive::Band {
-                amplitude,
-                from,
-                to,
-            } => {
-                value(amplitude, out);
-                out.push(from);
-                out.push(to);
-            }
-            Drive::Step(v) | Drive::Impulse(v) => value(v, out),
-        },
-        StatementKind::Initial {
-            displacement,
-            velocity,
-            ..
-        } => {
-            value(displacement, out);
-            if let Some(v) = velocity {
-                value(v, out);
-            }
-        }
-        StatementKind::Require(r) => {
-            if let Subject::Settling {
-                within: Some(w), ..
-            } = &r.subject
-            {
-                out.push(w);
-            }
-            match &r.comparison {
-                Comparison::Compare { rhs, .. } => out.push(rhs),
-                Comparison::In { lo, hi } | Comparison::Outside { lo, hi } => {
-                    out.push(lo);
-                    out.push(hi);
-                }
-                Comparison::Is { .. } => {}
-            }
-        }
-    }
 }
 
 /// Calls `f` on `e` and every sub-expression, without recursion (depth is bounded by the

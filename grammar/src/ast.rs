@@ -172,6 +172,72 @@ pub struct Value {
     pub span: Span,
 }
 
+impl Value {
+    /// Pushes the value's expression and its tolerance's onto `out`.
+    pub fn push_exprs<'a>(&'a self, out: &mut Vec<&'a Expr>) {
+        out.push(&self.expr);
+        out.extend(self.tolerance.as_ref());
+    }
+}
+
+impl StatementKind {
+    /// Pushes the top-level expressions of the statement (values with their tolerances, drive
+    /// parts, requirement limits) onto `out`, in source order.
+    pub fn push_exprs<'a>(&'a self, out: &mut Vec<&'a Expr>) {
+        match self {
+            StatementKind::Let(l) => l.value.push_exprs(out),
+            StatementKind::Node { value, .. }
+            | StatementKind::Element { value, .. }
+            | StatementKind::Gravity { value } => value.push_exprs(out),
+            StatementKind::Drive { drive, .. } => match drive {
+                Drive::Harmonic {
+                    amplitude,
+                    frequency,
+                } => {
+                    amplitude.push_exprs(out);
+                    frequency.push_exprs(out);
+                }
+                Drive::Band {
+                    amplitude,
+                    from,
+                    to,
+                } => {
+                    amplitude.push_exprs(out);
+                    out.push(from);
+                    out.push(to);
+                }
+                Drive::Step(v) | Drive::Impulse(v) => v.push_exprs(out),
+            },
+            StatementKind::Initial {
+                displacement,
+                velocity,
+                ..
+            } => {
+                displacement.push_exprs(out);
+                if let Some(v) = velocity {
+                    v.push_exprs(out);
+                }
+            }
+            StatementKind::Require(r) => {
+                if let Subject::Settling {
+                    within: Some(w), ..
+                } = &r.subject
+                {
+                    out.push(w);
+                }
+                match &r.comparison {
+                    Comparison::Compare { rhs, .. } => out.push(rhs),
+                    Comparison::In { lo, hi } | Comparison::Outside { lo, hi } => {
+                        out.push(lo);
+                        out.push(hi);
+                    }
+                    Comparison::Is { .. } => {}
+                }
+            }
+        }
+    }
+}
+
 #[derive(Clone, Debug, PartialEq)]
 pub enum Drive {
     /// `VALUE at VALUE`

@@ -27,7 +27,6 @@ use tower_lsp_server::ls_types::{
 };
 
 use crate::diagnostics;
-use crate::outline::statement_exprs;
 use crate::snapshot::Snapshot;
 
 /// The work all damper sizings of one request may take together (see
@@ -144,10 +143,10 @@ fn file_exprs(file: &ast::File) -> Vec<&Expr> {
     let mut out = Vec::new();
     for item in &file.items {
         match item {
-            Item::Let(l) => crate::outline::value_exprs(&l.value, &mut out),
+            Item::Let(l) => l.value.push_exprs(&mut out),
             Item::System(s) => {
                 for st in &s.statements {
-                    statement_exprs(&st.kind, &mut out);
+                    st.kind.push_exprs(&mut out);
                 }
             }
             Item::Use(_) => {}
@@ -479,7 +478,7 @@ fn extract_let(
         .iter()
         .flat_map(|st| {
             let mut tops = Vec::new();
-            statement_exprs(&st.kind, &mut tops);
+            st.kind.push_exprs(&mut tops);
             tops.into_iter()
                 .flat_map(subexprs)
                 .map(move |e| (&st.kind, e))

@@ -70,10 +70,10 @@ pub fn visit_numbers<'a>(file: &'a sprung_syntax::ast::File, f: &mut dyn FnMut(&
     let mut exprs: Vec<&sprung_syntax::ast::Expr> = Vec::new();
     for item in &file.items {
         match item {
-            Item::Let(l) => crate::outline::value_exprs(&l.value, &mut exprs),
+            Item::Let(l) => l.value.push_exprs(&mut exprs),
             Item::System(s) => {
                 for st in &s.statements {
-                    crate::outline::statement_exprs(&st.kind, &mut exprs);
+                    st.kind.push_exprs(&mut exprs);
                 }
             }
             Item::Use(_) => {}

@@ -1,76 +1,13 @@
 //! Document symbols (systems → their statements) and folding ranges (system bodies, runs of
-//! comments), plus the walk over a statement's expressions that other features share.
+//! comments) and selection ranges.
 
-use sprung_syntax::ast::{Drive, Expr, Item, StatementKind, Value};
+use sprung_syntax::ast::{Expr, Item};
 use tower_lsp_server::ls_types::{
     DocumentSymbol, FoldingRange, FoldingRangeKind, SelectionRange, SymbolInformation, SymbolKind,
 };
 
 use crate::snapshot::Snapshot;
 use crate::symbols::DefKind;
-
-pub fn value_exprs<'a>(v: &'a Value, out: &mut Vec<&'a Expr>) {
-    out.push(&v.expr);
-    if let Some(t) = &v.tolerance {
-        out.push(t);
-    }
-}
-
-/// The top-level expressions of a statement (values, drive parts, requirement limits).
-pub fn statement_exprs<'a>(st: &'a StatementKind, out: &mut Vec<&'a Expr>) {
-    use sprung_syntax::ast::{Comparison, Subject};
-    match st {
-        StatementKind::Let(l) => value_exprs(&l.value, out),
-        StatementKind::Node { value, .. }
-        | StatementKind::Element { value, .. }
-        | StatementKind::Gravity { value } => value_exprs(value, out),
-        StatementKind::Drive { drive, .. } => match drive {
-            Drive::Harmonic {
-                amplitude,
-                frequency,
-            } => {
-                value_exprs(amplitude, out);
-                value_exprs(frequency, out);
-            }
-            Drive::Band {
-                amplitude,
-                from,
-                to,
-            } => {
-                value_exprs(amplitude, out);
-                out.push(from);
-                out.push(to);
-            }
-            Drive::Step(v) | Drive::Impulse(v) => value_exprs(v, out),
-        },
-        StatementKind::Initial {
-            displacement,
-            velocity,
-            ..
-        } => {
-            value_exprs(displacement, out);
-            if let Some(v) = velocity {
-                value_exprs(v, out);
-            }
-        }
-        StatementKind::Require(r) => {
-            if let Subject::Settling {
-                within: Some(w), ..
-            } = &r.subject
-            {
-                out.push(w);
-            }
-            match &r.comparison {
-                Comparison::Compare { rhs, .. } => out.push(rhs),
-                Comparison::In { lo, hi } | Comparison::Outside { lo, hi } => {
-                    out.push(lo);
-                    out.push(hi);
-                }
-                Comparison::Is { .. } => {}
-            }
-        }
-    }
-}
 
 fn symbol_kind(k: DefKind) -> SymbolKind {
     match k {
@@ -196,7 +133,7 @@ pub fn selection_range(
         match item {
             Item::Let(l) => {
                 spans.push(l.value.span);
-                value_exprs(&l.value, &mut exprs);
+                l.value.push_exprs(&mut exprs);
             }
             Item::System(s) => {
                 if let Some(b) = s.body_span {
@@ -204,7 +141,7 @@ pub fn selection_range(
                 }
                 for st in s.statements.iter().filter(|st| st.span.contains(offset)) {
                     spans.push(st.span);
-                    statement_exprs(&st.kind, &mut exprs);
+                    st.kind.push_exprs(&mut exprs);
                 }
             }
             Item::Use(_) => {}

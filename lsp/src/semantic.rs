@@ -167,9 +167,9 @@ mod tests {
         }
     }
 
-    /// Applies edits as a client does: on the flat integer array.
-    fn apply(old: &[SemanticToken], edits: &[SemanticTokensEdit]) -> Vec<u32> {
-        let mut flat: Vec<u32> = old
+    /// The protocol's flat encoding: five integers per token.
+    fn flat(tokens: &[SemanticToken]) -> Vec<u32> {
+        tokens
             .iter()
             .flat_map(|t| {
                 [
@@ -180,26 +180,18 @@ mod tests {
                     t.token_modifiers_bitset,
                 ]
             })
-            .collect();
+            .collect()
+    }
+
+    /// Applies edits as a client does: on the flat integer array.
+    fn apply(old: &[SemanticToken], edits: &[SemanticTokensEdit]) -> Vec<u32> {
+        let mut flat_old = flat(old);
         for e in edits {
-            let data: Vec<u32> = e
-                .data
-                .iter()
-                .flatten()
-                .flat_map(|t| {
-                    [
-                        t.delta_line,
-                        t.delta_start,
-                        t.length,
-                        t.token_type,
-                        t.token_modifiers_bitset,
-                    ]
-                })
-                .collect();
+            let data = flat(e.data.as_deref().unwrap_or(&[]));
             let (s, n) = (e.start as usize, e.delete_count as usize);
-            flat.splice(s..s + n, data);
+            flat_old.splice(s..s + n, data);
         }
-        flat
+        flat_old
     }
 
     #[test]
@@ -228,7 +220,7 @@ mod tests {
         ];
         for new in &cases {
             let edits = delta(&a, new);
-            let expect: Vec<u32> = apply(new, &[]);
+            let expect = flat(new);
             assert_eq!(apply(&a, &edits), expect, "{new:?}");
             assert!(edits.len() <= 1);
         }

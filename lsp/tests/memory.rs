@@ -17,34 +17,11 @@
 
 mod common;
 
-use common::Client;
+use common::{Client, chain};
 use serde_json::json;
 
 #[global_allocator]
 static ALLOC: dhat::Alloc = dhat::Alloc;
-
-/// The same chain as lsp/tests/latency.rs: `n` masses of 2 kg, 50 kN/m springs, the first to
-/// ground, 3 N·s/m to ground on every mass.
-fn chain(n: usize) -> String {
-    let mut s = String::from("system chain {\n");
-    for i in 0..n {
-        s.push_str(&format!("  mass m{i} = 2 kg\n"));
-    }
-    s.push_str("  spring s0 between m0 and ground = 50 kN/m\n");
-    for i in 1..n {
-        s.push_str(&format!(
-            "  spring s{i} between m{} and m{i} = 50 kN/m\n",
-            i - 1
-        ));
-    }
-    for i in 0..n {
-        s.push_str(&format!(
-            "  damper d{i} between m{i} and ground = 3 N*s/m\n"
-        ));
-    }
-    s.push_str("  require damping >= 0.0001\n}\n");
-    s
-}
 
 fn mib(bytes: usize) -> String {
     format!("{:.1} MiB", bytes as f64 / (1024.0 * 1024.0))

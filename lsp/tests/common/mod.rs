@@ -218,3 +218,27 @@ pub fn pos(v: &Value) -> String {
 pub fn range(v: &Value) -> String {
     format!("{}-{}", pos(&v["start"]), pos(&v["end"]))
 }
+
+/// The measurement document of `latency.rs` and `memory.rs`: a chain of `n` masses of 2 kg
+/// joined by 50 kN/m springs, the first to ground, 3 N·s/m to ground on every mass (so the
+/// damping is classical), and one damping requirement.
+pub fn chain(n: usize) -> String {
+    let mut s = String::from("system chain {\n");
+    for i in 0..n {
+        s.push_str(&format!("  mass m{i} = 2 kg\n"));
+    }
+    s.push_str("  spring s0 between m0 and ground = 50 kN/m\n");
+    for i in 1..n {
+        s.push_str(&format!(
+            "  spring s{i} between m{} and m{i} = 50 kN/m\n",
+            i - 1
+        ));
+    }
+    for i in 0..n {
+        s.push_str(&format!(
+            "  damper d{i} between m{i} and ground = 3 N*s/m\n"
+        ));
+    }
+    s.push_str("  require damping >= 0.0001\n}\n");
+    s
+}
