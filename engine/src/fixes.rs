@@ -3,7 +3,7 @@
 
 use std::collections::HashMap;
 
-use sprung_syntax::ast::{Expr, ExprKind, File, Item};
+use sprung_syntax::ast::{Expr, ExprKind, File};
 
 use crate::diagnostics::ExpectedUnit;
 use crate::dim::Dim;
@@ -24,7 +24,7 @@ pub fn unit_to_add(file: &File, expected: ExpectedUnit) -> String {
     let want_angle = per_angle(expected.unit);
     // Unit text -> (count, first position).
     let mut seen: HashMap<String, (usize, usize)> = HashMap::new();
-    for e in file_exprs(file) {
+    for e in file.top_exprs() {
         visit(e, &mut |e| {
             let ExprKind::Number {
                 unit: Some(u),
@@ -49,23 +49,6 @@ pub fn unit_to_add(file: &File, expected: ExpectedUnit) -> String {
     seen.into_iter()
         .max_by(|(_, (n1, at1)), (_, (n2, at2))| n1.cmp(n2).then(at2.cmp(at1)))
         .map_or_else(|| expected.unit.to_string(), |(text, _)| text)
-}
-
-/// Every top-level expression of the file: values, tolerances, drive parts, limits.
-fn file_exprs(file: &File) -> Vec<&Expr> {
-    let mut out = Vec::new();
-    for item in &file.items {
-        match item {
-            Item::Let(l) => l.value.push_exprs(&mut out),
-            Item::System(s) => {
-                for st in &s.statements {
-                    st.kind.push_exprs(&mut out);
-                }
-            }
-            Item::Use(_) => {}
-        }
-    }
-    out
 }
 
 /// Calls `f` on `e` and every sub-expression, without recursion (depth is bounded by the

@@ -172,6 +172,25 @@ pub struct Value {
     pub span: Span,
 }
 
+impl File {
+    /// Every top-level expression of the file: values, tolerances, drive parts, limits.
+    pub fn top_exprs(&self) -> Vec<&Expr> {
+        let mut out = Vec::new();
+        for item in &self.items {
+            match item {
+                Item::Let(l) => l.value.push_exprs(&mut out),
+                Item::System(s) => {
+                    for st in &s.statements {
+                        st.kind.push_exprs(&mut out);
+                    }
+                }
+                Item::Use(_) => {}
+            }
+        }
+        out
+    }
+}
+
 impl Value {
     /// Pushes the value's expression and its tolerance's onto `out`.
     pub fn push_exprs<'a>(&'a self, out: &mut Vec<&'a Expr>) {

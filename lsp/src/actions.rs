@@ -138,23 +138,6 @@ fn replacements(
 
 // ---- add the expected unit to a bare number ----------------------------------------------
 
-/// Every top-level expression of the file.
-fn file_exprs(file: &ast::File) -> Vec<&Expr> {
-    let mut out = Vec::new();
-    for item in &file.items {
-        match item {
-            Item::Let(l) => l.value.push_exprs(&mut out),
-            Item::System(s) => {
-                for st in &s.statements {
-                    st.kind.push_exprs(&mut out);
-                }
-            }
-            Item::Use(_) => {}
-        }
-    }
-    out
-}
-
 /// `e` and all its sub-expressions, outermost first.
 fn subexprs(e: &Expr) -> Vec<&Expr> {
     let mut out = Vec::new();
@@ -200,7 +183,8 @@ fn add_unit(
         return;
     };
     let file = &snap.checked.parse.file;
-    let Some(whole) = file_exprs(file)
+    let Some(whole) = file
+        .top_exprs()
         .into_iter()
         .flat_map(subexprs)
         .find(|e| e.span == d.span)
