@@ -123,7 +123,10 @@ def reference(n, m, c, k, j, x0, v0):
     # which rounds the eigenvalues differently in the last bits, samples the same points
     # (near a resonance a last-bit shift of the frequency moves the response by 1e-9).
     wn = np.array([float(f"{w:.12g}") for w in wn])
+    # The same for the log-spaced points: numpy's exp and log differ in the last bit between
+    # processors (its SIMD dispatch), so the points are rounded too.
     omegas = np.geomspace(wn.min() / 3.0, wn.max() * 3.0, FREQUENCIES)
+    omegas = np.array([float(f"{w:.12g}") for w in omegas])
     omegas = np.sort(np.concatenate([omegas, wn]))
     frequency = []
     for w in omegas:
