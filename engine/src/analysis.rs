@@ -455,10 +455,14 @@ fn measure_all(
 
 /// Warns about dampers across which no undamped mode has any relative motion.
 fn dampers_not_felt(sys: &SystemModel, result: &ModalResult, diags: &mut Vec<Diagnostic>) {
+    // Each elastic mode with the largest magnitude of its shape (relative motion is judged on
+    // the shape scaled to a largest entry of 1).
     let elastic: Vec<_> = result
         .modes
         .iter()
         .filter(|m| m.regime != ModeRegime::RigidBody)
+        .map(|m| (m, m.shape.iter().fold(0.0_f64, |a, x| a.max(x.abs()))))
+        .filter(|&(_, peak)| peak > 0.0)
         .collect();
     if elastic.is_empty() {
         return;
@@ -472,9 +476,9 @@ fn dampers_not_felt(sys: &SystemModel, result: &ModalResult, diags: &mut Vec<Dia
             End::Ground => 0.0,
             End::Dof(i) => shape.get(i).copied().unwrap_or(0.0),
         };
-        let felt = elastic.iter().any(|m| {
-            let rel = at(&m.shape_unit, el.a) - at(&m.shape_unit, el.b);
-            rel.abs() > 1e-6
+        let felt = elastic.iter().any(|(m, peak)| {
+            let rel = at(m.shape.as_slice(), el.a) - at(m.shape.as_slice(), el.b);
+            rel.abs() > 1e-6 * peak
         });
         if !felt {
             diags.push(Diagnostic::new(

@@ -10,8 +10,8 @@
 //! sees them, so faer's own shape assertions cannot fire.
 
 use faer::diag::{DiagMut, DiagRef};
-use faer::dyn_stack::{MemBuffer, MemStack};
-use faer::linalg::{evd, triangular_solve};
+use faer::dyn_stack::{MemBuffer, MemStack, StackReq};
+use faer::linalg::{evd, temp_mat_scratch, triangular_solve};
 use faer::{Mat, MatMut, MatRef, Par, Side};
 use nalgebra::{Complex, DMatrix};
 
@@ -228,13 +228,7 @@ fn tridiagonal(
     values: &mut [f64],
     u: MatMut<'_, f64>,
 ) -> Result<(), EigenError> {
-    let n = diag.len();
-    let mut buffer = MemBuffer::new(evd::self_adjoint_evd_scratch::<f64>(
-        n,
-        evd::ComputeEigenvectors::Yes,
-        Par::Seq,
-        Default::default(),
-    ));
+    let mut buffer = MemBuffer::new(tridiagonal_scratch(diag.len()));
     evd::tridiagonal_self_adjoint_evd(
         DiagRef::from_slice(diag),
         DiagRef::from_slice(sub),
@@ -245,6 +239,24 @@ fn tridiagonal(
         Default::default(),
     )
     .map_err(|_| EigenError::NoConvergence)
+}
+
+/// The workspace of faer's `tridiagonal_self_adjoint_evd` for a real matrix with eigenvectors,
+/// exactly: copies of the diagonal and subdiagonal, an empty real U (the scalar is real), and
+/// divide and conquer's four index arrays, six vectors and two n × n matrices (faer's
+/// `tridiag_evd::divide_and_conquer_scratch`, which is not public). faer offers only the dense
+/// solver's requirement, which adds a third n × n matrix (8 MB more at 1,000 coordinates) for
+/// the reduction this route skips. faer is pinned to the version this was read from
+/// (Cargo.toml), and the `tridiagonal_workspace_suffices` test runs the solver at sizes on both
+/// sides of its recursion threshold: a MemStack that is too small would panic there.
+fn tridiagonal_scratch(n: usize) -> StackReq {
+    StackReq::all_of(&[
+        temp_mat_scratch::<f64>(n, 1).array(2),
+        temp_mat_scratch::<f64>(n, 0),
+        StackReq::new::<usize>(n).array(4),
+        temp_mat_scratch::<f64>(n, 1).array(6),
+        temp_mat_scratch::<f64>(n, n).array(2),
+    ])
 }
 
 /// Eigenvalues (ascending, into `values`) and orthonormal eigenvectors (into `u`) of the
@@ -488,6 +500,51 @@ mod tests {
         assert!(residual.abs().max() < 1e-8 * 4.0 * k / m);
         let gram = e.shapes.transpose() * &mm * &e.shapes;
         assert!((gram - DMatrix::identity(n, n)).abs().max() < 1e-12);
+    }
+
+    #[test]
+    fn tridiagonal_workspace_suffices() {
+        // The exact workspace of `tridiagonal_scratch` at sizes below, at and above faer's
+        // recursion threshold (128), with a zero subdiagonal entry (two paths) in the larger
+        // ones: the solver must not run out of workspace (a panic) and must decompose.
+        for n in [1, 2, 3, 64, 127, 128, 129, 200, 257, 600] {
+            let diag: Vec<f64> = (0..n).map(|i| 2.0 + (i % 7) as f64 * 0.25).collect();
+            let sub: Vec<f64> = (0..n)
+                .map(|p| {
+                    if n > 100 && p == n / 2 {
+                        0.0
+                    } else {
+                        -1.0 + (p % 3) as f64 * 0.1
+                    }
+                })
+                .collect();
+            let mut values = vec![0.0; n];
+            let mut u = Mat::<f64>::zeros(n, n);
+            tridiagonal(&diag, &sub, &mut values, u.as_mut()).unwrap();
+            let t = Mat::from_fn(n, n, |i, j| match i.abs_diff(j) {
+                0 => diag[i],
+                1 => sub[i.min(j)],
+                _ => 0.0,
+            });
+            let residual = &t * &u
+                - &u * faer::Mat::from_fn(n, n, |i, j| if i == j { values[i] } else { 0.0 });
+            let gram = u.transpose() * &u - Mat::<f64>::identity(n, n);
+            let max = |a: &Mat<f64>| {
+                (0..n)
+                    .flat_map(|j| (0..n).map(move |i| (i, j)))
+                    .fold(0.0_f64, |m, (i, j)| m.max(a[(i, j)].abs()))
+            };
+            assert!(
+                max(&residual) < 1e-12,
+                "n = {n}: residual {}",
+                max(&residual)
+            );
+            assert!(max(&gram) < 1e-12, "n = {n}: orthogonality {}", max(&gram));
+            assert!(
+                values.windows(2).all(|w| w[0] <= w[1]),
+                "n = {n}: not ascending"
+            );
+        }
     }
 
     #[test]

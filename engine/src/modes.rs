@@ -158,8 +158,18 @@ pub struct Mode {
     pub assignment_mac: f64,
     /// The undamped shape, mass-normalised (φᵀ M φ = 1), largest-magnitude entry positive.
     pub shape: DVector<f64>,
-    /// The same shape scaled so that its largest-magnitude entry is +1 (the JSON `shape`).
-    pub shape_unit: Vec<f64>,
+}
+
+impl Mode {
+    /// The shape scaled so that its largest-magnitude entry is +1 (the JSON `shape`); computed
+    /// on demand rather than stored, since a 1,000-mode result would hold n² more numbers.
+    pub fn shape_unit(&self) -> Vec<f64> {
+        let peak = self.shape.iter().fold(0.0_f64, |a, x| a.max(x.abs()));
+        self.shape
+            .iter()
+            .map(|x| if peak > 0.0 { x / peak } else { 0.0 })
+            .collect()
+    }
 }
 
 #[derive(Clone, Debug)]
@@ -282,11 +292,6 @@ pub fn analyze(mats: &Matrices, config: &ModalConfig) -> Result<ModalResult, Mod
     for j in 0..n {
         let (roots, mac) = pairs[j].ok_or(ModalError::Assignment)?;
         let shape: DVector<f64> = shapes.column(j).into_owned();
-        let peak = shape.iter().fold(0.0_f64, |a, x| a.max(x.abs()));
-        let shape_unit = shape
-            .iter()
-            .map(|x| if peak > 0.0 { x / peak } else { 0.0 })
-            .collect();
         modes.push(characterise(
             j + 1,
             omega2[j],
@@ -295,7 +300,6 @@ pub fn analyze(mats: &Matrices, config: &ModalConfig) -> Result<ModalResult, Mod
             roots,
             mac,
             shape,
-            shape_unit,
             config,
         ));
     }
@@ -572,7 +576,6 @@ fn characterise(
     roots: [Complex64; 2],
     assignment_mac: f64,
     shape: DVector<f64>,
-    shape_unit: Vec<f64>,
     config: &ModalConfig,
 ) -> Mode {
     let sum = (roots[0] + roots[1]).re;
@@ -656,7 +659,6 @@ fn characterise(
         roots,
         assignment_mac,
         shape,
-        shape_unit,
     }
 }
 

@@ -52,7 +52,7 @@ fn fixed_fixed_chains_match_the_closed_form() {
             // The engine signs by the first entry of largest magnitude (to rounding).
             let big = s.iter().fold(0.0_f64, |a, &x| a.max(x.abs()));
             let peak = *s.iter().find(|x| x.abs() >= big * (1.0 - 1e-9)).unwrap();
-            for (a, b) in mode.shape_unit.iter().zip(&s) {
+            for (a, b) in mode.shape_unit().iter().zip(&s) {
                 assert!((a - b / peak).abs() < 1e-8, "N = {n}, mode {j}");
             }
         }

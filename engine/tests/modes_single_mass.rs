@@ -46,7 +46,7 @@ fn undamped_underdamped_critical_overdamped() {
         assert!(rel(mode.damped_frequency.unwrap(), w0) < 1e-14);
         assert!(rel(mode.natural_frequency_hz, w0 / (2.0 * std::f64::consts::PI)) < 1e-14);
         assert_eq!(mode.quality_factor, None);
-        assert_eq!(mode.shape_unit, vec![1.0]);
+        assert_eq!(mode.shape_unit(), vec![1.0]);
         // φᵀ M φ = 1.
         assert!(rel(mode.shape[0] * m * mode.shape[0], 1.0) < 1e-14);
 

@@ -44,7 +44,7 @@ fn free_free_two_masses_have_one_rigid_body_mode() {
             assert_eq!(r.modes[0].natural_frequency, 0.0);
             assert_eq!(r.modes[0].damping_ratio, None);
             // The rigid shape moves both masses together.
-            assert!((r.modes[0].shape_unit[0] - r.modes[0].shape_unit[1]).abs() < 1e-12);
+            assert!((r.modes[0].shape_unit()[0] - r.modes[0].shape_unit()[1]).abs() < 1e-12);
             assert_ne!(r.modes[1].regime, ModeRegime::RigidBody);
             assert!((r.modes[1].natural_frequency - w).abs() < 1e-10 * w);
             let expected = if c == 0.0 {

@@ -217,7 +217,7 @@ pub fn mode_table(sys: &SystemModel, modal: &ModalResult) -> String {
         "| mode | fn | ζ | fd | Q | regime | shape |\n|---|---|---|---|---|---|---|\n",
     );
     for m in modal.modes.iter().take(TABLE_MODES) {
-        let mut entries: Vec<(usize, f64)> = m.shape_unit.iter().copied().enumerate().collect();
+        let mut entries: Vec<(usize, f64)> = m.shape_unit().into_iter().enumerate().collect();
         let many = entries.len() > SHAPE_ENTRIES;
         if many {
             entries.sort_by(|a, b| b.1.abs().total_cmp(&a.1.abs()));

@@ -55,10 +55,10 @@ fn heap_at_1000_dof() {
         .map_or(0, |m| m.modes.len());
     drop(snap);
     eprintln!(
-        "{n} dof, one snapshot: peak {} while computed, {} held ({modes} modes; their shapes alone are 2 × {n} × {n} × 8 bytes = {})",
+        "{n} dof, one snapshot: peak {} while computed, {} held ({modes} modes; their shapes alone are {n} × {n} × 8 bytes = {})",
         mib(peak_snapshot),
         mib(held_snapshot),
-        mib(2 * n * n * 8)
+        mib(n * n * 8)
     );
 
     // 2. The server: open, diagnostics, hints, then an edit and its re-analysis (while the old

@@ -65,7 +65,7 @@ impl ModeJson {
             damped_frequency_hz: m.damped_frequency_hz,
             damping_ratio: m.damping_ratio,
             regime: m.regime.as_str(),
-            shape: m.shape_unit.clone(),
+            shape: m.shape_unit(),
             natural_frequency_rad_s: m.natural_frequency,
             quality_factor: m.quality_factor.filter(|q| q.is_finite()),
             decay_time_constant_s: m.decay_time_constant.filter(|t| t.is_finite()),
