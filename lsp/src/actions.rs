@@ -33,20 +33,40 @@ use crate::snapshot::Snapshot;
 /// [`SizingConfig::max_work`]): shared between the dampers offered.
 const SIZING_BUDGET: f64 = 3e8;
 
-pub fn code_actions(snap: &Snapshot, uri: &Uri, range: Range) -> Vec<CodeActionOrCommand> {
+/// The code actions over `range`; `only` is the request's `context.only`: when given, just the
+/// actions of those kinds or their sub-kinds (`refactor` admits `refactor.extract`), and the
+/// work of the others (a damper sizing, say) is not done.
+pub fn code_actions(
+    snap: &Snapshot,
+    uri: &Uri,
+    range: Range,
+    only: Option<&[CodeActionKind]>,
+) -> Vec<CodeActionOrCommand> {
+    let wanted = |kind: &CodeActionKind| {
+        only.is_none_or(|only| {
+            only.iter().any(|o| {
+                let (o, k) = (o.as_str(), kind.as_str());
+                k == o || k.strip_prefix(o).is_some_and(|rest| rest.starts_with('.'))
+            })
+        })
+    };
     let (lo, hi) = (snap.offset(range.start), snap.offset(range.end));
-    let engine = snap.analysis.all_diagnostics(&snap.checked);
-    let protocol = diagnostics::to_lsp(snap, uri);
     let mut out = Vec::new();
-    for (d, lsp) in engine.iter().zip(protocol) {
-        if d.span.end < lo || d.span.start > hi {
-            continue;
+    if wanted(&CodeActionKind::QUICKFIX) {
+        let engine = snap.analysis.all_diagnostics(&snap.checked);
+        let protocol = diagnostics::to_lsp(snap, uri);
+        for (d, lsp) in engine.iter().zip(protocol) {
+            if d.span.end < lo || d.span.start > hi {
+                continue;
+            }
+            replacements(snap, uri, d, &lsp, &mut out);
+            add_unit(snap, uri, d, &lsp, &mut out);
+            size_dampers(snap, uri, d, &lsp, &mut out);
         }
-        replacements(snap, uri, d, &lsp, &mut out);
-        add_unit(snap, uri, d, &lsp, &mut out);
-        size_dampers(snap, uri, d, &lsp, &mut out);
     }
-    extract_let(snap, uri, lo, hi, &mut out);
+    if wanted(&CodeActionKind::REFACTOR_EXTRACT) {
+        extract_let(snap, uri, lo, hi, &mut out);
+    }
     out
 }
 

@@ -765,9 +765,10 @@ impl LanguageServer for Server {
     async fn code_action(&self, params: CodeActionParams) -> Result<Option<CodeActionResponse>> {
         let uri = params.text_document.uri.clone();
         let range = params.range;
+        let only = params.context.only;
         self.inner
             .read(&params.text_document.uri, Need::Analysis, move |s| {
-                Some(actions::code_actions(s, &uri, range))
+                Some(actions::code_actions(s, &uri, range, only.as_deref()))
             })
             .await
     }

@@ -1174,3 +1174,69 @@ async fn range_formatting_touches_only_the_selected_statement() {
     // Minimal: from `=` (column 43) to the `+-` (columns 53-55); `10%` is kept as it was.
     assert_eq!(render_edits(&edits), "3:43-3:55 \" = 4 * 65 kN/m ± \"\n");
 }
+
+/// The kinds of the code actions from `(line, from)` to `(line, to)` with `context.only` set
+/// to `only`.
+async fn action_kinds_only(
+    c: &mut Client,
+    (line, from, to): (u32, u32, u32),
+    only: Value,
+) -> Vec<String> {
+    let a = c
+        .request(
+            "textDocument/codeAction",
+            json!({ "textDocument": { "uri": URI }, "range": {
+                "start": { "line": line, "character": from }, "end": { "line": line, "character": to } },
+                "context": { "diagnostics": [], "only": only } }),
+        )
+        .await
+        .unwrap();
+    a.as_array()
+        .unwrap()
+        .iter()
+        .map(|x| x["kind"].as_str().unwrap().to_string())
+        .collect()
+}
+
+#[tokio::test]
+async fn code_actions_honour_context_only() {
+    let mut c = Client::utf16().await;
+    c.open(URI, REPEATED).await;
+    // On the repeated `50 kN/m` of line 5 (an extraction): every kind asked for, then each alone.
+    let all = actions_in(&mut c, (5, 42), (5, 42)).await;
+    assert!(
+        all.iter().any(|a| a["kind"] == "refactor.extract"),
+        "{all:#?}"
+    );
+    assert_eq!(
+        action_kinds_only(&mut c, (5, 42, 42), json!(["refactor"])).await,
+        ["refactor.extract"]
+    );
+    assert_eq!(
+        action_kinds_only(&mut c, (5, 42, 42), json!(["refactor.extract"])).await,
+        ["refactor.extract"]
+    );
+    // `refactor.ex` is not a parent kind of `refactor.extract`.
+    assert!(
+        action_kinds_only(&mut c, (5, 42, 42), json!(["refactor.ex"]))
+            .await
+            .is_empty()
+    );
+    assert!(
+        action_kinds_only(&mut c, (5, 42, 42), json!(["quickfix"]))
+            .await
+            .is_empty()
+    );
+    // A unit typo: its quick fixes, and nothing when only refactors are asked for.
+    let text = "system s {\n  mass m = 20 lb\n  spring k between m and ground = 40 kN/m\n}\n";
+    c.change(URI, 2, json!([{ "text": text }])).await;
+    assert_eq!(
+        action_kinds_only(&mut c, (1, 0, 200), json!(["quickfix"])).await,
+        ["quickfix", "quickfix"]
+    );
+    assert!(
+        action_kinds_only(&mut c, (1, 0, 200), json!(["refactor"]))
+            .await
+            .is_empty()
+    );
+}
