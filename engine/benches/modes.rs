@@ -38,12 +38,12 @@ fn chain(n: usize) -> Matrices {
         stamp(&mut k, i, Some(i - 1), 5e4);
     }
     stamp(&mut c, n - 1, None, 80.0);
-    Matrices {
-        m: DMatrix::from_diagonal_element(n, n, 2.0),
+    Matrices::from_dense(
+        DMatrix::from_diagonal_element(n, n, 2.0),
         c,
         k,
-        dof_kinds: vec![DofKind::Translational; n],
-    }
+        vec![DofKind::Translational; n],
+    )
 }
 
 /// The generator shared with bench_scipy.py: 64-bit LCG, uniform in [0, 1).
@@ -85,12 +85,7 @@ fn random(n: usize) -> Matrices {
             stamp(&mut c, a, b, 1.0 + 19.0 * rng.next());
         }
     }
-    Matrices {
-        m,
-        c,
-        k,
-        dof_kinds: vec![DofKind::Translational; n],
-    }
+    Matrices::from_dense(m, c, k, vec![DofKind::Translational; n])
 }
 
 fn bench(c: &mut Criterion) {
@@ -105,7 +100,7 @@ fn bench(c: &mut Criterion) {
         for n in SIZES {
             let mats = build(n);
             group.bench_with_input(BenchmarkId::from_parameter(n), &mats, |b, m| {
-                b.iter(|| eigen::generalized_symmetric(&m.k, &m.m).unwrap())
+                b.iter(|| eigen::generalized_symmetric_sparse(&m.k, &m.m).unwrap())
             });
         }
         group.finish();
@@ -117,7 +112,8 @@ fn bench(c: &mut Criterion) {
         for n in SIZES {
             let mats = build(n);
             group.bench_with_input(BenchmarkId::from_parameter(n), &mats, |b, m| {
-                b.iter(|| eigen::state_space(&m.m, &m.c, &m.k).unwrap())
+                let (mm, cc, kk) = (m.dense_m(), m.dense_c(), m.dense_k());
+                b.iter(|| eigen::state_space(&mm, &cc, &kk).unwrap())
             });
         }
         group.finish();
@@ -225,7 +221,7 @@ fn bench_latency_document(c: &mut Criterion) {
             })
         });
         group.bench_with_input(BenchmarkId::new("undamped", n), &mats, |b, m| {
-            b.iter(|| eigen::generalized_symmetric(&m.k, &m.m).unwrap())
+            b.iter(|| eigen::generalized_symmetric_sparse(&m.k, &m.m).unwrap())
         });
     }
     group.finish();

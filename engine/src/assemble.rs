@@ -5,8 +5,17 @@
 //! or damper between coordinates i and j adds its value to (i,i) and (j,j) and subtracts it
 //! from (i,j) and (j,i); one between i and ground adds to (i,i) only; so C and K are symmetric
 //! by construction. Every failure is an [`AssembleError`], never a panic.
+//!
+//! The three matrices are stored sparse (compressed columns, nalgebra-sparse [`CscMatrix`]): a
+//! chain of n masses has at most about 3n nonzeros in each, where dense storage would keep
+//! 3 n² values alive through the eigensolve. Every stamp is pushed even when its value is
+//! zero, so the pattern holds an entry for every element (sizing updates a damper's entries in
+//! place).
+//! Consumers that need dense matrices (the state matrix, the harmonic solve) ask for them with
+//! [`Matrices::dense_m`] and its siblings.
 
 use nalgebra::DMatrix;
+use nalgebra_sparse::{CooMatrix, CscMatrix};
 use sprung_syntax::ast::ElementKind;
 
 use crate::formula::{Evaluator, FormulaId};
@@ -25,20 +34,51 @@ impl Default for Limits {
     }
 }
 
-/// The matrices of M ẍ + C ẋ + K x = f, in SI units, n × n with n = number of dofs.
+/// The matrices of M ẍ + C ẋ + K x = f, in SI units, n × n with n = number of dofs, stored
+/// sparse.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Matrices {
-    pub m: DMatrix<f64>,
-    pub c: DMatrix<f64>,
-    pub k: DMatrix<f64>,
+    pub m: CscMatrix<f64>,
+    pub c: CscMatrix<f64>,
+    pub k: CscMatrix<f64>,
     /// Translational or rotational, per coordinate.
     pub dof_kinds: Vec<DofKind>,
 }
 
 impl Matrices {
+    /// Matrices from dense M, C, K (their nonzero entries are stored).
+    pub fn from_dense(
+        m: DMatrix<f64>,
+        c: DMatrix<f64>,
+        k: DMatrix<f64>,
+        dof_kinds: Vec<DofKind>,
+    ) -> Self {
+        Matrices {
+            m: CscMatrix::from(&m),
+            c: CscMatrix::from(&c),
+            k: CscMatrix::from(&k),
+            dof_kinds,
+        }
+    }
+
     /// The number of degrees of freedom.
     pub fn dofs(&self) -> usize {
         self.m.nrows()
+    }
+
+    /// M as a dense matrix.
+    pub fn dense_m(&self) -> DMatrix<f64> {
+        DMatrix::from(&self.m)
+    }
+
+    /// C as a dense matrix.
+    pub fn dense_c(&self) -> DMatrix<f64> {
+        DMatrix::from(&self.c)
+    }
+
+    /// K as a dense matrix.
+    pub fn dense_k(&self) -> DMatrix<f64> {
+        DMatrix::from(&self.k)
     }
 }
 
@@ -147,16 +187,16 @@ impl<'m> Assembler<'m> {
     pub fn assemble(&mut self, deviations: &[f64]) -> Result<Matrices, AssembleError> {
         self.evaluator.run(deviations);
         let n = self.sys.dofs.len();
-        let mut m = DMatrix::zeros(n, n);
-        let mut c = DMatrix::zeros(n, n);
-        let mut k = DMatrix::zeros(n, n);
+        let mut m = CooMatrix::new(n, n);
+        let mut c = CooMatrix::new(n, n);
+        let mut k = CooMatrix::new(n, n);
         for (i, id) in self.dof_values.iter().enumerate() {
             let value = self.evaluator.get(*id);
             // `!(value > 0)` also catches NaN.
             if !(value > 0.0 && value.is_finite()) {
                 return Err(AssembleError::NonPositiveMass { dof: i, value });
             }
-            m[(i, i)] = value;
+            m.push(i, i, value);
         }
         for (index, (element, id)) in self
             .sys
@@ -178,28 +218,29 @@ impl<'m> Assembler<'m> {
             };
             add_element(target, element.a, element.b, value);
         }
+        // Duplicates are summed on conversion; explicit zeros are kept.
         Ok(Matrices {
-            m,
-            c,
-            k,
+            m: CscMatrix::from(&m),
+            c: CscMatrix::from(&c),
+            k: CscMatrix::from(&k),
             dof_kinds: self.sys.dofs.iter().map(|d| d.kind).collect(),
         })
     }
 }
 
-/// Adds a two-terminal element of value `value` between ends `a` and `b` (ends already checked
-/// to be in range).
-fn add_element(target: &mut DMatrix<f64>, a: End, b: End, value: f64) {
+/// Pushes the stamps of a two-terminal element of value `value` between ends `a` and `b` (ends
+/// already checked to be in range), all of them even for a zero value.
+fn add_element(target: &mut CooMatrix<f64>, a: End, b: End, value: f64) {
     match (a, b) {
         (End::Dof(i), End::Dof(j)) if i != j => {
-            target[(i, i)] += value;
-            target[(j, j)] += value;
-            target[(i, j)] -= value;
-            target[(j, i)] -= value;
+            target.push(i, i, value);
+            target.push(j, j, value);
+            target.push(i, j, -value);
+            target.push(j, i, -value);
         }
         // An element from a coordinate to itself stretches nothing.
         (End::Dof(_), End::Dof(_)) => {}
-        (End::Dof(i), End::Ground) | (End::Ground, End::Dof(i)) => target[(i, i)] += value,
+        (End::Dof(i), End::Ground) | (End::Ground, End::Dof(i)) => target.push(i, i, value),
         (End::Ground, End::Ground) => {}
     }
 }
@@ -284,12 +325,39 @@ mod tests {
             systems: vec![],
         };
         let mats = assemble(&model, &sys, &[]).unwrap();
-        assert_eq!(mats.m, DMatrix::from_row_slice(2, 2, &[2.0, 0.0, 0.0, 3.0]));
         assert_eq!(
-            mats.k,
+            mats.dense_m(),
+            DMatrix::from_row_slice(2, 2, &[2.0, 0.0, 0.0, 3.0])
+        );
+        assert_eq!(
+            mats.dense_k(),
             DMatrix::from_row_slice(2, 2, &[140.0, -40.0, -40.0, 40.0])
         );
-        assert_eq!(mats.c, DMatrix::from_row_slice(2, 2, &[0.0, 0.0, 0.0, 5.0]));
+        assert_eq!(
+            mats.dense_c(),
+            DMatrix::from_row_slice(2, 2, &[0.0, 0.0, 0.0, 5.0])
+        );
+    }
+
+    #[test]
+    fn a_zero_damper_keeps_its_entries() {
+        // Sizing updates a damper's stamps in place, so they must be stored even at zero.
+        let mut f = Formulas::default();
+        let dofs = vec![dof(&mut f, 1.0), dof(&mut f, 1.0)];
+        let c0 = quantity(&mut f, 0.0);
+        let sys = system(
+            dofs,
+            vec![element(ElementKind::Damper, End::Dof(0), End::Dof(1), c0)],
+        );
+        let model = Model {
+            formulas: f,
+            params: vec![],
+            globals: vec![],
+            systems: vec![],
+        };
+        let mats = assemble(&model, &sys, &[]).unwrap();
+        assert_eq!(mats.c.nnz(), 4);
+        assert!(mats.c.values().iter().all(|&v| v == 0.0));
     }
 
     #[test]
@@ -314,9 +382,9 @@ mod tests {
             systems: vec![],
         };
         let mut asm = Assembler::new(&model, &sys, Limits::default()).unwrap();
-        assert_eq!(asm.assemble(&[]).unwrap().k[(0, 0)], 1000.0);
-        assert!((asm.assemble(&[-0.1]).unwrap().k[(0, 0)] - 900.0).abs() < 1e-12);
-        assert!((asm.assemble(&[0.1]).unwrap().k[(0, 0)] - 1100.0).abs() < 1e-12);
+        assert_eq!(asm.assemble(&[]).unwrap().dense_k()[(0, 0)], 1000.0);
+        assert!((asm.assemble(&[-0.1]).unwrap().dense_k()[(0, 0)] - 900.0).abs() < 1e-12);
+        assert!((asm.assemble(&[0.1]).unwrap().dense_k()[(0, 0)] - 1100.0).abs() < 1e-12);
     }
 
     #[test]

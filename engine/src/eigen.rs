@@ -1,7 +1,9 @@
 //! Eigendecompositions: the one module that talks to faer.
 //!
-//! The rest of the engine holds its matrices as nalgebra [`DMatrix`]; this module copies them
-//! into faer, decomposes, and copies the results back. Why faer: nalgebra has no eigenvectors for
+//! The rest of the engine holds M, C and K as nalgebra-sparse [`CscMatrix`] and everything
+//! else as nalgebra [`DMatrix`]; this module copies them into faer, decomposes, and copies the
+//! results back. The undamped modal solve ([`generalized_symmetric_sparse`]) reads K and a
+//! diagonal M straight from their stored entries, so it never holds them dense. Why faer: nalgebra has no eigenvectors for
 //! non-symmetric matrices and no generalized symmetric solver, and its Schur iteration can fail
 //! to converge on companion-like state matrices; faer has both at about LAPACK speed.
 //!
@@ -14,6 +16,7 @@ use faer::dyn_stack::{MemBuffer, MemStack, StackReq};
 use faer::linalg::{evd, temp_mat_scratch, triangular_solve};
 use faer::{Mat, MatMut, MatRef, Par, Side};
 use nalgebra::{Complex, DMatrix};
+use nalgebra_sparse::CscMatrix;
 
 pub type Complex64 = Complex<f64>;
 
@@ -80,13 +83,29 @@ pub fn symmetric(a: &DMatrix<f64>) -> Result<(Vec<f64>, DMatrix<f64>), EigenErro
 /// M = L Lᵀ, a symmetric eigensolver on L⁻¹ K L⁻ᵀ, and φ = L⁻ᵀ u. A diagonal M (what assembly
 /// produces) takes the same route with L = diag(√mᵢ), done by scaling; then, when the springs
 /// join the coordinates in chains (see [`path_order`]), L⁻¹ K L⁻ᵀ is tridiagonal after a
-/// reordering and goes straight to the tridiagonal solver.
+/// reordering and goes straight to the tridiagonal solver. Dense K and M are stored sparse and
+/// handed to [`generalized_symmetric_sparse`].
 pub fn generalized_symmetric(
     k: &DMatrix<f64>,
     m: &DMatrix<f64>,
 ) -> Result<UndampedEigen, EigenError> {
     check_square(k)?;
     check_same(k, m)?;
+    generalized_symmetric_sparse(&CscMatrix::from(k), &CscMatrix::from(m))
+}
+
+/// [`generalized_symmetric`] on sparse K and M. A diagonal M (every stored off-diagonal entry
+/// zero) is read from its stored entries and K from its pattern, so neither is made dense; any
+/// other M is made dense for its Cholesky factorisation.
+pub fn generalized_symmetric_sparse(
+    k: &CscMatrix<f64>,
+    m: &CscMatrix<f64>,
+) -> Result<UndampedEigen, EigenError> {
+    check_square_sparse(k)?;
+    check_square_sparse(m)?;
+    if k.nrows() != m.nrows() {
+        return Err(EigenError::Shape);
+    }
     let n = k.nrows();
     if n == 0 {
         return Ok(UndampedEigen {
@@ -94,18 +113,18 @@ pub fn generalized_symmetric(
             shapes: DMatrix::zeros(0, 0),
         });
     }
-    if is_diagonal(m) {
+    if m.triplet_iter().all(|(i, j, &v)| i == j || v == 0.0) {
         let mut s = Vec::with_capacity(n);
         for i in 0..n {
-            let mi = m[(i, i)];
+            let mi = entry_of(m, i, i);
             if mi.is_nan() || mi <= 0.0 {
                 return Err(EigenError::NotPositiveDefinite { index: i });
             }
             s.push(mi.sqrt());
         }
-        // L⁻¹ K L⁻ᵀ entry by entry (only the lower triangle is read).
+        // L⁻¹ K L⁻ᵀ entry by entry, for the few entries the tridiagonal route reads.
         let entry = |i: usize, j: usize| {
-            let kij = 0.5 * (k[(i, j)] + k[(j, i)]);
+            let kij = 0.5 * (entry_of(k, i, j) + entry_of(k, j, i));
             kij / s[i] / s[j]
         };
         // The eigenvectors are written straight into the shapes' storage, then scaled (and
@@ -115,7 +134,11 @@ pub fn generalized_symmetric(
         let mut u = MatMut::from_column_major_slice_mut(shapes.as_mut_slice(), n, n);
         // A pair whose two entries cancel is still taken as coupled: harmless, its entry in
         // the tridiagonal matrix is then zero.
-        match path_order(n, |i, j| k[(i, j)] != 0.0) {
+        let coupled = k
+            .triplet_iter()
+            .filter(|&(_, _, &v)| v != 0.0)
+            .map(|(i, j, _)| (i, j));
+        match path_order(n, coupled) {
             Some(order) => {
                 let diag: Vec<f64> = order.iter().map(|&i| entry(i, i)).collect();
                 let sub: Vec<f64> = (0..n)
@@ -136,7 +159,18 @@ pub fn generalized_symmetric(
                 }
             }
             None => {
-                let a = Mat::from_fn(n, n, entry);
+                // K + Kᵀ from the stored entries, then halved and scaled in place: the same
+                // arithmetic as `entry`, over every entry.
+                let mut a = Mat::<f64>::zeros(n, n);
+                for (i, j, &v) in k.triplet_iter() {
+                    a[(i, j)] += v;
+                    a[(j, i)] += v;
+                }
+                for j in 0..n {
+                    for i in 0..n {
+                        a[(i, j)] = 0.5 * a[(i, j)] / s[i] / s[j];
+                    }
+                }
                 dense_symmetric(a.as_ref(), &mut omega2, u.as_mut())?;
                 drop(a);
                 for mut col in shapes.column_iter_mut() {
@@ -148,9 +182,9 @@ pub fn generalized_symmetric(
         }
         return Ok(UndampedEigen { omega2, shapes });
     }
-    let l = cholesky(m)?;
+    let l = cholesky(&DMatrix::from(m))?;
     // Y = L⁻¹ K; then A = L⁻¹ Yᵀ = L⁻¹ K L⁻ᵀ (K symmetric).
-    let mut y = to_faer(k);
+    let mut y = sparse_to_faer(k);
     triangular_solve::solve_lower_triangular_in_place(l.as_ref(), y.as_mut(), Par::Seq);
     let mut a = y.transpose().to_owned();
     triangular_solve::solve_lower_triangular_in_place(l.as_ref(), a.as_mut(), Par::Seq);
@@ -166,12 +200,18 @@ pub fn generalized_symmetric(
     })
 }
 
-/// When the off-diagonal nonzeros of an n × n matrix (`nonzero(i, j)`; i, j coupled when
-/// either (i, j) or (j, i) is nonzero) form disjoint paths, as they do for a chain of masses, an order of the coordinates along
-/// those paths, path after path: in that order the matrix is tridiagonal. `None` for any other
+/// The entry (i, j) of a sparse matrix, zero where none is stored.
+fn entry_of(a: &CscMatrix<f64>, i: usize, j: usize) -> f64 {
+    a.get_entry(i, j).map_or(0.0, |e| e.into_value())
+}
+
+/// When the off-diagonal nonzeros of an n × n matrix (`nonzero`, its (i, j) positions; i, j
+/// coupled when either (i, j) or (j, i) is listed; diagonal positions are skipped) form
+/// disjoint paths, as they do for a chain of masses, an order of the coordinates along those
+/// paths, path after path: in that order the matrix is tridiagonal. `None` for any other
 /// pattern (a coordinate with three neighbours, or a cycle). The scan stops at the first
-/// coordinate with a third neighbour, so a dense matrix costs little.
-fn path_order(n: usize, nonzero: impl Fn(usize, usize) -> bool) -> Option<Vec<usize>> {
+/// coordinate with a third neighbour, so a dense pattern costs little.
+fn path_order(n: usize, nonzero: impl IntoIterator<Item = (usize, usize)>) -> Option<Vec<usize>> {
     const NONE: usize = usize::MAX;
     let mut nbr = vec![[NONE; 2]; n];
     let link = |nbr: &mut [[usize; 2]], i: usize, j: usize| -> bool {
@@ -182,16 +222,14 @@ fn path_order(n: usize, nonzero: impl Fn(usize, usize) -> bool) -> Option<Vec<us
         }
         true
     };
-    // Both triangles, column by column (contiguous in a column-major matrix): a pair is
-    // linked the first time either of its entries is seen.
-    for j in 0..n {
-        for i in 0..n {
-            if i == j || !nonzero(i, j) || nbr[i].contains(&j) {
-                continue;
-            }
-            if !(link(&mut nbr, i, j) && link(&mut nbr, j, i)) {
-                return None;
-            }
+    // Both triangles: a pair is linked the first time either of its entries is seen. The
+    // order of the links does not matter: a path is walked away from where it came from.
+    for (i, j) in nonzero {
+        if i == j || nbr[i].contains(&j) {
+            continue;
+        }
+        if !(link(&mut nbr, i, j) && link(&mut nbr, j, i)) {
+            return None;
         }
     }
     let mut order = Vec::with_capacity(n);
@@ -355,6 +393,28 @@ pub fn congruence(phi: &DMatrix<f64>, a: &DMatrix<f64>) -> Result<DMatrix<f64>, 
     Ok(from_faer(out.as_ref()))
 }
 
+/// Φᵀ A Φ for a sparse A: A Φ through A's stored entries (sparse times dense), then Φᵀ (A Φ)
+/// dense, so A is never made dense.
+pub fn congruence_sparse(
+    phi: &DMatrix<f64>,
+    a: &CscMatrix<f64>,
+) -> Result<DMatrix<f64>, EigenError> {
+    check_square_sparse(a)?;
+    if phi.nrows() != a.nrows() {
+        return Err(EigenError::Shape);
+    }
+    check_finite(phi)?;
+    let p = to_faer(phi);
+    let mut ap = Mat::<f64>::zeros(a.nrows(), phi.ncols());
+    for (i, l, &v) in a.triplet_iter() {
+        for col in 0..phi.ncols() {
+            ap[(i, col)] += v * p[(l, col)];
+        }
+    }
+    let out = p.transpose() * &ap;
+    Ok(from_faer(out.as_ref()))
+}
+
 fn cholesky(m: &DMatrix<f64>) -> Result<Mat<f64>, EigenError> {
     let llt = to_faer(m).llt(Side::Lower).map_err(|e| match e {
         faer::linalg::cholesky::llt::factor::LltError::NonPositivePivot { index } => {
@@ -364,9 +424,15 @@ fn cholesky(m: &DMatrix<f64>) -> Result<Mat<f64>, EigenError> {
     Ok(llt.L().to_owned())
 }
 
-fn is_diagonal(m: &DMatrix<f64>) -> bool {
-    let n = m.nrows();
-    (0..n).all(|j| (0..n).all(|i| i == j || m[(i, j)] == 0.0))
+fn check_square_sparse(a: &CscMatrix<f64>) -> Result<(), EigenError> {
+    if a.nrows() != a.ncols() {
+        return Err(EigenError::Shape);
+    }
+    if a.values().iter().all(|x| x.is_finite()) {
+        Ok(())
+    } else {
+        Err(EigenError::NonFinite)
+    }
 }
 
 fn check_square(a: &DMatrix<f64>) -> Result<(), EigenError> {
@@ -393,6 +459,14 @@ fn check_same(a: &DMatrix<f64>, b: &DMatrix<f64>) -> Result<(), EigenError> {
 
 fn to_faer(a: &DMatrix<f64>) -> Mat<f64> {
     Mat::from_fn(a.nrows(), a.ncols(), |i, j| a[(i, j)])
+}
+
+fn sparse_to_faer(a: &CscMatrix<f64>) -> Mat<f64> {
+    let mut out = Mat::zeros(a.nrows(), a.ncols());
+    for (i, j, &v) in a.triplet_iter() {
+        out[(i, j)] += v;
+    }
+    out
 }
 
 fn from_faer(a: MatRef<'_, f64>) -> DMatrix<f64> {
@@ -437,10 +511,19 @@ mod tests {
         (kk, DMatrix::from_diagonal_element(n, n, m))
     }
 
+    /// The positions of the nonzero entries of `a`, column by column.
+    fn nonzero(a: &DMatrix<f64>) -> Vec<(usize, usize)> {
+        let (r, c) = a.shape();
+        (0..c)
+            .flat_map(|j| (0..r).map(move |i| (i, j)))
+            .filter(|&(i, j)| a[(i, j)] != 0.0)
+            .collect()
+    }
+
     #[test]
     fn path_order_finds_chains_and_refuses_other_patterns() {
         let (k, _) = scrambled_chain(&[3, 0, 5, 1, 4, 2], 1.0, 1.0);
-        let order = path_order(6, |i, j| k[(i, j)] != 0.0).unwrap();
+        let order = path_order(6, nonzero(&k)).unwrap();
         // Along the order, only neighbours are coupled: tridiagonal.
         for (p, &i) in order.iter().enumerate() {
             for (q, &j) in order.iter().enumerate() {
@@ -455,24 +538,21 @@ mod tests {
             two[(a, b)] = -1.0;
             two[(b, a)] = -1.0;
         }
-        assert_eq!(
-            path_order(5, |i, j| two[(i, j)] != 0.0).map(|o| o.len()),
-            Some(5)
-        );
+        assert_eq!(path_order(5, nonzero(&two)).map(|o| o.len()), Some(5));
         // A coordinate with three neighbours, and a ring: not paths.
         let mut star = DMatrix::<f64>::identity(4, 4);
         for b in 1..4 {
             star[(0, b)] = -1.0;
             star[(b, 0)] = -1.0;
         }
-        assert_eq!(path_order(4, |i, j| star[(i, j)] != 0.0), None);
+        assert_eq!(path_order(4, nonzero(&star)), None);
         let mut ring = DMatrix::<f64>::identity(4, 4);
         for a in 0..4 {
             let b = (a + 1) % 4;
             ring[(a, b)] = -1.0;
             ring[(b, a)] = -1.0;
         }
-        assert_eq!(path_order(4, |i, j| ring[(i, j)] != 0.0), None);
+        assert_eq!(path_order(4, nonzero(&ring)), None);
     }
 
     #[test]
@@ -485,7 +565,7 @@ mod tests {
         let at: Vec<usize> = (0..n).map(|i| (i * 37) % n).collect();
         let (m, k) = (2.0, 5e4);
         let (kk, mm) = scrambled_chain(&at, m, k);
-        assert!(path_order(n, |i, j| kk[(i, j)] != 0.0).is_some());
+        assert!(path_order(n, nonzero(&kk)).is_some());
         let e = generalized_symmetric(&kk, &mm).unwrap();
         for (j, w2) in e.omega2.iter().enumerate() {
             let theta = (2 * j + 1) as f64 * std::f64::consts::PI / (2.0 * (2 * n + 1) as f64);

@@ -49,6 +49,7 @@
 //!    modes.
 
 use nalgebra::{DMatrix, DVector};
+use nalgebra_sparse::CscMatrix;
 
 use crate::assemble::Matrices;
 use crate::eigen::{self, Complex64, EigenError};
@@ -214,7 +215,7 @@ impl From<EigenError> for ModalError {
 /// Modal analysis of one assembled system.
 pub fn analyze(mats: &Matrices, config: &ModalConfig) -> Result<ModalResult, ModalError> {
     let n = mats.dofs();
-    if mats.c.shape() != (n, n) || mats.k.shape() != (n, n) {
+    if (mats.c.nrows(), mats.c.ncols()) != (n, n) || (mats.k.nrows(), mats.k.ncols()) != (n, n) {
         return Err(EigenError::Shape.into());
     }
     if n == 0 {
@@ -223,7 +224,7 @@ pub fn analyze(mats: &Matrices, config: &ModalConfig) -> Result<ModalResult, Mod
             damping: DampingKind::None,
         });
     }
-    let und = eigen::generalized_symmetric(&mats.k, &mats.m)?;
+    let und = eigen::generalized_symmetric_sparse(&mats.k, &mats.m)?;
     let mut shapes = und.shapes;
     for j in 0..n {
         let mut col = shapes.column_mut(j);
@@ -249,7 +250,7 @@ pub fn analyze(mats: &Matrices, config: &ModalConfig) -> Result<ModalResult, Mod
     // (S, P, roots, mac) per mode.
     let mut pairs: Vec<Option<([Complex64; 2], f64)>> = vec![None; n];
     let damping;
-    if mats.c.iter().all(|&x| x == 0.0) {
+    if mats.c.values().iter().all(|&x| x == 0.0) {
         damping = DampingKind::None;
         for j in 0..n {
             pairs[j] = Some((quadratic_roots(0.0, omega2[j]), 1.0));
@@ -263,7 +264,7 @@ pub fn analyze(mats: &Matrices, config: &ModalConfig) -> Result<ModalResult, Mod
             pairs[j] = Some((quadratic_roots(diag[j], omega2[j]), 1.0));
         }
     } else {
-        let d = eigen::congruence(&shapes, &mats.c)?;
+        let d = eigen::congruence_sparse(&shapes, &mats.c)?;
         let d = DMatrix::from_fn(n, n, |i, j| 0.5 * (d[(i, j)] + d[(j, i)]));
         let groups = match config.method {
             DampedMethod::StateSpace => vec![(0..n).collect()],
@@ -338,31 +339,32 @@ fn quadratic_roots(c: f64, k: f64) -> [Complex64; 2] {
 /// cost is about n × (nonzeros of C + 3n) instead of the two dense n³ products of Φᵀ C Φ.
 fn classical_diagonal(
     shapes: &DMatrix<f64>,
-    c: &DMatrix<f64>,
-    m: &DMatrix<f64>,
+    c: &CscMatrix<f64>,
+    m: &CscMatrix<f64>,
     tol: f64,
 ) -> Option<Vec<f64>> {
     let n = shapes.nrows();
-    let mut masses = Vec::with_capacity(n);
-    for j in 0..n {
-        for i in 0..n {
-            if i != j && m[(i, j)] != 0.0 {
-                return None;
-            }
-        }
-        masses.push(m[(j, j)]);
+    if m.nrows() != n || c.nrows() != n {
+        return None;
     }
-    let mut nonzeros = Vec::new();
-    for j in 0..n {
-        for i in 0..n {
-            if c[(i, j)] != 0.0 {
-                nonzeros.push((i, j, c[(i, j)]));
-            }
-        }
-        // A dense C gains nothing from this route.
-        if nonzeros.len() > n * n / 8 + 16 {
+    let mut masses = vec![0.0; n];
+    for (i, j, &v) in m.triplet_iter() {
+        if i != j && v != 0.0 {
             return None;
         }
+        if i == j {
+            masses[i] = v;
+        }
+    }
+    // Column by column, as stored: the order in which C φ is accumulated below.
+    let nonzeros: Vec<(usize, usize, f64)> = c
+        .triplet_iter()
+        .filter(|&(_, _, &v)| v != 0.0)
+        .map(|(i, j, &v)| (i, j, v))
+        .collect();
+    // A dense C gains nothing from this route.
+    if nonzeros.len() > n * n / 8 + 16 {
+        return None;
     }
     let inverse: Vec<f64> = masses.iter().map(|m| 1.0 / m).collect();
     let mut diag = Vec::with_capacity(n);
@@ -701,20 +703,24 @@ mod tests {
         let und = eigen::generalized_symmetric(&k, &m).unwrap();
         let (alpha, beta) = (0.3, 0.002);
         let c = &m * alpha + &k * beta;
-        let diag = classical_diagonal(&und.shapes, &c, &m, 1e-10).unwrap();
+        let sparse = |a: &DMatrix<f64>| CscMatrix::from(a);
+        let diag = classical_diagonal(&und.shapes, &sparse(&c), &sparse(&m), 1e-10).unwrap();
         for (d, w2) in diag.iter().zip(&und.omega2) {
             assert!((d - (alpha + beta * w2)).abs() < 1e-12);
         }
         // One damper at the free end couples the modes: not shown classical, D is formed.
         let mut c = DMatrix::zeros(3, 3);
         c[(2, 2)] = 5.0;
-        assert_eq!(classical_diagonal(&und.shapes, &c, &m, 1e-10), None);
+        assert_eq!(
+            classical_diagonal(&und.shapes, &sparse(&c), &sparse(&m), 1e-10),
+            None
+        );
         // A full mass matrix is not handled here either.
         let mut full = m.clone();
         full[(0, 1)] = 0.1;
         full[(1, 0)] = 0.1;
         assert_eq!(
-            classical_diagonal(&und.shapes, &(&m * alpha), &full, 1e-10),
+            classical_diagonal(&und.shapes, &sparse(&(&m * alpha)), &sparse(&full), 1e-10),
             None
         );
     }

@@ -47,6 +47,7 @@
 //! while the grid steps are about 2% apart: the hints are what catch it.
 
 use nalgebra::{DMatrix, DVector};
+use nalgebra_sparse::CscMatrix;
 use sprung_syntax::ast::{DriveKind, ElementKind};
 
 use crate::assemble::Matrices;
@@ -387,16 +388,13 @@ pub struct Harmonic {
 
 fn check_matrices(mats: &Matrices) -> Result<usize, ResponseError> {
     let n = mats.dofs();
-    if mats.m.shape() != (n, n)
-        || mats.c.shape() != (n, n)
-        || mats.k.shape() != (n, n)
-        || mats.dof_kinds.len() != n
-    {
+    let square = |a: &CscMatrix<f64>| (a.nrows(), a.ncols()) == (n, n);
+    if !square(&mats.m) || !square(&mats.c) || !square(&mats.k) || mats.dof_kinds.len() != n {
         return Err(ResponseError::Shape);
     }
     if [&mats.m, &mats.c, &mats.k]
         .iter()
-        .any(|a| a.iter().any(|x| !x.is_finite()))
+        .any(|a| a.values().iter().any(|x| !x.is_finite()))
     {
         return Err(ResponseError::NonFinite);
     }
@@ -504,12 +502,14 @@ fn solve_dynamic(
         return Ok(DVector::from_element(0, Complex64::new(0.0, 0.0)));
     }
     let w2 = omega * omega;
+    // The harmonic solve is a dense LU: M, C and K are made dense for it.
+    let (m, c, k) = (mats.dense_m(), mats.dense_c(), mats.dense_k());
     let dynamic = DMatrix::from_fn(n, n, |i, j| {
-        Complex64::new(mats.k[(i, j)] - w2 * mats.m[(i, j)], omega * mats.c[(i, j)])
+        Complex64::new(k[(i, j)] - w2 * m[(i, j)], omega * c[(i, j)])
     });
     let scale: Vec<f64> = (0..n)
         .map(|i| {
-            let d = mats.k[(i, i)].abs() + w2 * mats.m[(i, i)].abs() + omega * mats.c[(i, i)].abs();
+            let d = k[(i, i)].abs() + w2 * m[(i, i)].abs() + omega * c[(i, i)].abs();
             let s = 1.0 / d.sqrt();
             if s.is_finite() { s } else { 1.0 }
         })
@@ -518,7 +518,7 @@ fn solve_dynamic(
     if pivot > PIVOT_FLAG {
         return x.ok_or(ResponseError::Singular { omega });
     }
-    let und = crate::eigen::generalized_symmetric(&mats.k, &mats.m)
+    let und = crate::eigen::generalized_symmetric_sparse(&mats.k, &mats.m)
         .map_err(|e| ResponseError::Modal(e.into()))?;
     let f_norm = f.norm();
     let mut deflated = dynamic;
@@ -530,8 +530,8 @@ fn solve_dynamic(
             continue;
         }
         let phi = und.shapes.column(r).into_owned();
-        let m_phi = &mats.m * &phi;
-        if (&mats.c * &phi).norm() > UNDAMPED * 2.0 * w2r.sqrt() * m_phi.norm() {
+        let m_phi = &m * &phi;
+        if (&c * &phi).norm() > UNDAMPED * 2.0 * w2r.sqrt() * m_phi.norm() {
             continue;
         }
         any = true;
@@ -963,12 +963,12 @@ mod tests {
     /// damping. Modes (closed form, standard vibration texts, from memory): in phase [1, 1] at
     /// ω₁² = k/m, antisymmetric [1, −1] at ω₂² = (k + 2kc)/m.
     fn symmetric_pair(m: f64, k: f64, kc: f64) -> (Matrices, Vec<GroundLink>) {
-        let mats = Matrices {
-            m: DMatrix::from_row_slice(2, 2, &[m, 0.0, 0.0, m]),
-            c: DMatrix::zeros(2, 2),
-            k: DMatrix::from_row_slice(2, 2, &[k + kc, -kc, -kc, k + kc]),
-            dof_kinds: vec![DofKind::Translational; 2],
-        };
+        let mats = Matrices::from_dense(
+            DMatrix::from_row_slice(2, 2, &[m, 0.0, 0.0, m]),
+            DMatrix::zeros(2, 2),
+            DMatrix::from_row_slice(2, 2, &[k + kc, -kc, -kc, k + kc]),
+            vec![DofKind::Translational; 2],
+        );
         let link = |element, dof| GroundLink {
             element,
             dof,
@@ -1034,12 +1034,12 @@ mod tests {
     fn close_to_an_excited_undamped_mode_the_value_is_the_closed_form() {
         // One mass, no damper: X = (F/k) / (1 − r²) (closed form, standard vibration texts,
         // from memory), exact even a hair away from resonance, where the plain LU pivot is tiny.
-        let mats = Matrices {
-            m: DMatrix::from_element(1, 1, 2.0),
-            c: DMatrix::zeros(1, 1),
-            k: DMatrix::from_element(1, 1, 800.0),
-            dof_kinds: vec![DofKind::Translational],
-        };
+        let mats = Matrices::from_dense(
+            DMatrix::from_element(1, 1, 2.0),
+            DMatrix::zeros(1, 1),
+            DMatrix::from_element(1, 1, 800.0),
+            vec![DofKind::Translational],
+        );
         let wn = 20.0_f64;
         for r in [1.0 + 1e-7, 1.0 - 3e-8, 0.5, 2.0] {
             let h = harmonic(&mats, &[], Excitation::Load { dof: 0 }, 5.0, wn * r).unwrap();
@@ -1061,7 +1061,7 @@ mod tests {
         // X = Σ φ φᵀF / (ωⱼ² − ω² + iω c/m).
         let (m, k, kc, c) = (3.0, 12_000.0, 5_000.0, 4.0);
         let (mut mats, ground) = symmetric_pair(m, k, kc);
-        mats.c = DMatrix::from_row_slice(2, 2, &[c, 0.0, 0.0, c]);
+        mats.c = CscMatrix::from(&DMatrix::from_row_slice(2, 2, &[c, 0.0, 0.0, c]));
         let omega = ((k + 2.0 * kc) / m).sqrt();
         let h = harmonic(&mats, &ground, Excitation::Load { dof: 0 }, 10.0, omega).unwrap();
         let iw = Complex64::new(0.0, omega * c / m);

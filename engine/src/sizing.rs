@@ -14,6 +14,7 @@
 //! corners times the search's evaluations exceed [`SizingConfig::max_work`] is refused rather
 //! than searched. Everything here is deterministic.
 
+use nalgebra_sparse::{CooMatrix, CscMatrix, SparseEntry, SparseEntryMut};
 use sprung_syntax::Span;
 use sprung_syntax::ast::{self, ElementKind, ExprKind, Regime, StatementKind, Subject};
 
@@ -359,8 +360,9 @@ impl Writing {
 /// The range searched: from 10⁻⁴ of the smallest to 10² times the largest critical damping
 /// 2√(K_ii M_ii) of a single coordinate held by its own diagonal stiffness.
 fn bracket(m: &Matrices) -> Option<(f64, f64)> {
+    let diagonal = |a: &CscMatrix<f64>, i: usize| a.get_entry(i, i).map_or(0.0, |e| e.into_value());
     let scales: Vec<f64> = (0..m.dofs())
-        .map(|i| 2.0 * (m.k[(i, i)] * m.m[(i, i)]).sqrt())
+        .map(|i| 2.0 * (diagonal(&m.k, i) * diagonal(&m.m, i)).sqrt())
         .filter(|c| c.is_finite() && *c > 0.0)
         .collect();
     let lo = scales.iter().copied().fold(f64::INFINITY, f64::min) * BELOW;
@@ -563,18 +565,39 @@ impl Search<'_> {
     }
 }
 
-/// Adds `value` of a two-terminal element between `a` and `b` to a damping matrix.
-fn stamp(c: &mut nalgebra::DMatrix<f64>, a: End, b: End, value: f64) {
-    match (a, b) {
+/// Adds `value` of a two-terminal element between `a` and `b` to a damping matrix. Assembly
+/// stores every stamp of every damper, even a zero one, so the entries are normally there and
+/// are updated in place; a matrix without them (one built from dense data) is rebuilt with them.
+fn stamp(c: &mut CscMatrix<f64>, a: End, b: End, value: f64) {
+    let stamps = match (a, b) {
         (End::Dof(i), End::Dof(j)) if i != j => {
-            c[(i, i)] += value;
-            c[(j, j)] += value;
-            c[(i, j)] -= value;
-            c[(j, i)] -= value;
+            vec![(i, i, value), (j, j, value), (i, j, -value), (j, i, -value)]
         }
-        (End::Dof(i), End::Ground) | (End::Ground, End::Dof(i)) => c[(i, i)] += value,
-        _ => {}
+        (End::Dof(i), End::Ground) | (End::Ground, End::Dof(i)) => vec![(i, i, value)],
+        _ => vec![],
+    };
+    let stored = stamps
+        .iter()
+        .all(|&(i, j, _)| matches!(c.get_entry(i, j), Some(SparseEntry::NonZero(_))));
+    if stored {
+        for (i, j, v) in stamps {
+            if let Some(SparseEntryMut::NonZero(x)) = c.get_entry_mut(i, j) {
+                *x += v;
+            }
+        }
+        return;
     }
+    let mut coo = CooMatrix::new(c.nrows(), c.ncols());
+    for (i, j, &v) in c.triplet_iter() {
+        coo.push(i, j, v);
+    }
+    for (i, j, v) in stamps {
+        // Ends outside the matrix are not stamped, as a dense matrix would refuse them too.
+        if i < c.nrows() && j < c.ncols() {
+            coo.push(i, j, v);
+        }
+    }
+    *c = CscMatrix::from(&coo);
 }
 
 #[cfg(test)]

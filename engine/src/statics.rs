@@ -21,7 +21,7 @@ pub const RIGID_TOLERANCE: f64 = 1e-10;
 /// share an element), so they come out 0.
 pub fn sag(mats: &Matrices, g: f64) -> Result<DVector<f64>, ResponseError> {
     let n = mats.dofs();
-    if mats.k.shape() != (n, n) || mats.dof_kinds.len() != n {
+    if (mats.k.nrows(), mats.k.ncols()) != (n, n) || mats.dof_kinds.len() != n {
         return Err(ResponseError::Shape);
     }
     if !g.is_finite() {
@@ -30,7 +30,7 @@ pub fn sag(mats: &Matrices, g: f64) -> Result<DVector<f64>, ResponseError> {
     if n == 0 {
         return Ok(DVector::zeros(0));
     }
-    let und = eigen::generalized_symmetric(&mats.k, &mats.m)
+    let und = eigen::generalized_symmetric_sparse(&mats.k, &mats.m)
         .map_err(|e| ResponseError::Modal(e.into()))?;
     let scale = und.omega2.iter().fold(0.0_f64, |a, w| a.max(w.abs()));
     if und
@@ -47,10 +47,10 @@ pub fn sag(mats: &Matrices, g: f64) -> Result<DVector<f64>, ResponseError> {
         DofKind::Translational => g,
         DofKind::Rotational => 0.0,
     });
-    let load = &mats.m * gravity;
+    // The static solve is dense: n is small wherever a sag is asked for.
+    let load = mats.dense_m() * gravity;
     let x = mats
-        .k
-        .clone()
+        .dense_k()
         .lu()
         .solve(&load)
         .ok_or(ResponseError::RigidBody)?;

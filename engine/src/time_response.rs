@@ -84,7 +84,7 @@ pub struct Loading {
 /// The loading of every step and impulse drive and every initial condition in `inputs`.
 pub fn loading(mats: &Matrices, inputs: &Inputs) -> Result<Loading, ResponseError> {
     let n = mats.dofs();
-    if mats.dof_kinds.len() != n || mats.m.shape() != (n, n) {
+    if mats.dof_kinds.len() != n || (mats.m.nrows(), mats.m.ncols()) != (n, n) {
         return Err(ResponseError::Shape);
     }
     let mut force = DVector::zeros(n);
@@ -137,8 +137,7 @@ pub fn loading(mats: &Matrices, inputs: &Inputs) -> Result<Loading, ResponseErro
     }
     if impulse.iter().any(|j| *j != 0.0) {
         let dv = mats
-            .m
-            .clone()
+            .dense_m()
             .cholesky()
             .ok_or(ResponseError::Shape)?
             .solve(&impulse);
@@ -208,13 +207,13 @@ pub fn simulate(
     {
         return Err(ResponseError::RigidBody);
     }
-    let a = eigen::state_matrix(&mats.m, &mats.c, &mats.k)
+    // The state matrix is dense anyway: M, C and K are made dense for it.
+    let a = eigen::state_matrix(&mats.dense_m(), &mats.dense_c(), &mats.dense_k())
         .map_err(|e| ResponseError::Modal(e.into()))?;
     let x_f = if loading.force.iter().all(|f| *f == 0.0) {
         DVector::zeros(n)
     } else {
-        mats.k
-            .clone()
+        mats.dense_k()
             .lu()
             .solve(&loading.force)
             .ok_or(ResponseError::RigidBody)?

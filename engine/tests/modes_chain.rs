@@ -20,12 +20,12 @@ fn chain(n: usize, m: f64, k: f64, fixed_end: bool) -> Matrices {
     if fixed_end {
         kk[(n - 1, n - 1)] += k;
     }
-    Matrices {
-        m: DMatrix::from_diagonal_element(n, n, m),
-        c: DMatrix::zeros(n, n),
-        k: kk,
-        dof_kinds: vec![DofKind::Translational; n],
-    }
+    Matrices::from_dense(
+        DMatrix::from_diagonal_element(n, n, m),
+        DMatrix::zeros(n, n),
+        kk,
+        vec![DofKind::Translational; n],
+    )
 }
 
 #[test]

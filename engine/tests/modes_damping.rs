@@ -84,12 +84,12 @@ fn rayleigh(masses: &[f64], links: &Links, alpha: f64, beta: f64) -> Matrices {
     let n = masses.len();
     let mut dampers: Links = links.iter().map(|&(a, b, k)| (a, b, beta * k)).collect();
     dampers.extend((0..n).map(|i| (Some(i), None, alpha * masses[i])));
-    Matrices {
-        m: DMatrix::from_diagonal(&masses.to_vec().into()),
-        c: stamp(n, &dampers),
-        k: stamp(n, links),
-        dof_kinds: vec![DofKind::Translational; n],
-    }
+    Matrices::from_dense(
+        DMatrix::from_diagonal(&masses.to_vec().into()),
+        stamp(n, &dampers),
+        stamp(n, links),
+        vec![DofKind::Translational; n],
+    )
 }
 
 fn state_space() -> ModalConfig {
@@ -106,7 +106,7 @@ fn rayleigh_damping_ratios_are_exact() {
         let n = 1 + rng.below(8);
         let (masses, links) = random_model(&mut rng, n);
         let mats0 = rayleigh(&masses, &links, 0.0, 0.0);
-        let w = omegas(&masses, &mats0.k);
+        let w = omegas(&masses, &mats0.dense_k());
         let alpha = rng.next() * w[0];
         let beta = rng.next() / w[n - 1];
         let mats = rayleigh(&masses, &links, alpha, beta);
@@ -205,12 +205,7 @@ fn modal_damping_is_assigned_by_shape_not_by_size() {
         let mphi = DMatrix::from_fn(2, 1, |i, _| masses[i].sqrt() * eig.eigenvectors[(i, col)]);
         c += &mphi * mphi.transpose() * (2.0 * zetas[p] * wj);
     }
-    let mats = Matrices {
-        m,
-        c,
-        k,
-        dof_kinds: vec![DofKind::Translational; 2],
-    };
+    let mats = Matrices::from_dense(m, c, k, vec![DofKind::Translational; 2]);
     let r = analyze(&mats, &state_space()).unwrap();
     assert_eq!(r.modes[0].regime, ModeRegime::Overdamped);
     assert_eq!(r.modes[1].regime, ModeRegime::Underdamped);

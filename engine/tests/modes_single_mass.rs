@@ -10,12 +10,7 @@ use sprung_engine::modes::{DampedMethod, ModalConfig, ModeRegime, analyze};
 
 fn one_mass(m: f64, c: f64, k: f64) -> Matrices {
     let one = |x: f64| DMatrix::from_element(1, 1, x);
-    Matrices {
-        m: one(m),
-        c: one(c),
-        k: one(k),
-        dof_kinds: vec![DofKind::Translational],
-    }
+    Matrices::from_dense(one(m), one(c), one(k), vec![DofKind::Translational])
 }
 
 fn configs() -> [ModalConfig; 2] {

@@ -14,12 +14,12 @@ use sprung_engine::modes::{
 
 fn mats(m: &[f64], c: &[f64], k: &[f64]) -> Matrices {
     let n = m.len();
-    Matrices {
-        m: DMatrix::from_diagonal(&m.to_vec().into()),
-        c: DMatrix::from_row_slice(n, n, c),
-        k: DMatrix::from_row_slice(n, n, k),
-        dof_kinds: vec![DofKind::Translational; n],
-    }
+    Matrices::from_dense(
+        DMatrix::from_diagonal(&m.to_vec().into()),
+        DMatrix::from_row_slice(n, n, c),
+        DMatrix::from_row_slice(n, n, k),
+        vec![DofKind::Translational; n],
+    )
 }
 
 fn both() -> [ModalConfig; 2] {
@@ -106,8 +106,8 @@ fn non_classical_damping_pairs_each_mode_with_its_own_roots() {
     let model = mats(&m, &c, &k);
     let r = analyze(&model, &ModalConfig::default()).unwrap();
     assert_eq!(r.damping, DampingKind::NonClassical);
-    let und = eigen::generalized_symmetric(&model.k, &model.m).unwrap();
-    let d = und.shapes.transpose() * &model.c * &und.shapes;
+    let und = eigen::generalized_symmetric(&model.dense_k(), &model.dense_m()).unwrap();
+    let d = und.shapes.transpose() * model.dense_c() * &und.shapes;
     for (j, mode) in r.modes.iter().enumerate() {
         assert_eq!(mode.regime, ModeRegime::Underdamped);
         let w = und.omega2[j].sqrt();
@@ -122,7 +122,7 @@ fn non_classical_damping_pairs_each_mode_with_its_own_roots() {
         assert!(mode.assignment_mac > 0.99);
     }
     // The assigned roots are exactly the roots of the raw state matrix, as a multiset.
-    let raw = eigen::state_space(&model.m, &model.c, &model.k)
+    let raw = eigen::state_space(&model.dense_m(), &model.dense_c(), &model.dense_k())
         .unwrap()
         .values;
     let mut mine = r.roots();
@@ -161,6 +161,6 @@ fn empty_and_malformed_inputs_are_errors_not_panics() {
         }))
     );
     let mut wrong = mats(&[1.0, 1.0], &[0.0; 4], &[1.0, 0.0, 0.0, 1.0]);
-    wrong.c = DMatrix::zeros(1, 1);
+    wrong.c = nalgebra_sparse::CscMatrix::zeros(1, 1);
     assert!(analyze(&wrong, &ModalConfig::default()).is_err());
 }

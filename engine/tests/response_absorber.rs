@@ -24,12 +24,12 @@ fn absorber_tuned(mu: f64, f: f64) -> Matrices {
     let m = mu * MAIN;
     let ka = m * (f * OMEGA).powi(2);
     let ca = (3.0 * mu / (8.0 * (1.0 + mu).powi(3))).sqrt() * 2.0 * m * OMEGA;
-    Matrices {
-        m: DMatrix::from_row_slice(2, 2, &[MAIN, 0.0, 0.0, m]),
-        c: DMatrix::from_row_slice(2, 2, &[ca, -ca, -ca, ca]),
-        k: DMatrix::from_row_slice(2, 2, &[k_main + ka, -ka, -ka, ka]),
-        dof_kinds: vec![DofKind::Translational; 2],
-    }
+    Matrices::from_dense(
+        DMatrix::from_row_slice(2, 2, &[MAIN, 0.0, 0.0, m]),
+        DMatrix::from_row_slice(2, 2, &[ca, -ca, -ca, ca]),
+        DMatrix::from_row_slice(2, 2, &[k_main + ka, -ka, -ka, ka]),
+        vec![DofKind::Translational; 2],
+    )
 }
 
 #[test]

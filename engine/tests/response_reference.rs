@@ -48,12 +48,12 @@ fn floats(v: &Value) -> Vec<f64> {
 fn mats(fx: &Value) -> Matrices {
     let m = matrix(&fx["M"]);
     let n = m.nrows();
-    Matrices {
+    Matrices::from_dense(
         m,
-        c: matrix(&fx["C"]),
-        k: matrix(&fx["K"]),
-        dof_kinds: vec![DofKind::Translational; n],
-    }
+        matrix(&fx["C"]),
+        matrix(&fx["K"]),
+        vec![DofKind::Translational; n],
+    )
 }
 
 /// The worst |computed − reference| / max(|reference|, 1e-3 × the largest |reference| of that

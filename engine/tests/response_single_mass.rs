@@ -34,12 +34,7 @@ fn wn() -> f64 {
 fn one_mass(zeta: f64) -> (Matrices, Vec<GroundLink>) {
     let c = zeta * 2.0 * (K * M).sqrt();
     let one = |x: f64| DMatrix::from_element(1, 1, x);
-    let mats = Matrices {
-        m: one(M),
-        c: one(c),
-        k: one(K),
-        dof_kinds: vec![DofKind::Translational],
-    };
+    let mats = Matrices::from_dense(one(M), one(c), one(K), vec![DofKind::Translational]);
     let ground = vec![
         GroundLink {
             element: 0,
@@ -299,12 +294,7 @@ fn static_sag_and_the_sag_rule() {
     let g = 9.80665;
     for k in [5e3, 4.8e4, 2e6] {
         let one = |x: f64| DMatrix::from_element(1, 1, x);
-        let mats = Matrices {
-            m: one(M),
-            c: one(0.0),
-            k: one(k),
-            dof_kinds: vec![DofKind::Translational],
-        };
+        let mats = Matrices::from_dense(one(M), one(0.0), one(k), vec![DofKind::Translational]);
         let delta = sag(&mats, g).unwrap()[0];
         assert!(rel(delta, M * g / k) < 1e-12);
         let modal = analyze(&mats, &ModalConfig::default()).unwrap();
@@ -317,22 +307,24 @@ fn static_sag_and_the_sag_rule() {
 
 #[test]
 fn rigid_unstable_and_unbounded_cases_are_errors() {
-    let free = Matrices {
-        m: DMatrix::from_element(1, 1, 1.0),
-        c: DMatrix::from_element(1, 1, 0.0),
-        k: DMatrix::from_element(1, 1, 0.0),
-        dof_kinds: vec![DofKind::Translational],
-    };
+    let free = Matrices::from_dense(
+        DMatrix::from_element(1, 1, 1.0),
+        DMatrix::from_element(1, 1, 0.0),
+        DMatrix::from_element(1, 1, 0.0),
+        vec![DofKind::Translational],
+    );
     assert_eq!(sag(&free, 9.81).err(), Some(ResponseError::RigidBody));
     let modal = analyze(&free, &ModalConfig::default()).unwrap();
     assert_eq!(
         simulate(&free, &step_loading(1.0), &modal, &TimeConfig::default()).err(),
         Some(ResponseError::RigidBody)
     );
-    let negative = Matrices {
-        k: DMatrix::from_element(1, 1, -100.0),
-        ..free.clone()
-    };
+    let negative = Matrices::from_dense(
+        free.dense_m(),
+        free.dense_c(),
+        DMatrix::from_element(1, 1, -100.0),
+        free.dof_kinds.clone(),
+    );
     let modal = analyze(&negative, &ModalConfig::default()).unwrap();
     assert_eq!(
         simulate(
@@ -346,10 +338,12 @@ fn rigid_unstable_and_unbounded_cases_are_errors() {
     );
     assert_eq!(sag(&negative, 9.81).err(), Some(ResponseError::Unstable));
     // An undamped mass never settles, but its overshoot is exactly 1 (peak twice the final).
-    let undamped = Matrices {
-        k: DMatrix::from_element(1, 1, 100.0),
-        ..free
-    };
+    let undamped = Matrices::from_dense(
+        free.dense_m(),
+        free.dense_c(),
+        DMatrix::from_element(1, 1, 100.0),
+        free.dof_kinds,
+    );
     let modal = analyze(&undamped, &ModalConfig::default()).unwrap();
     let tr = simulate(
         &undamped,

@@ -15,12 +15,7 @@ use sprung_engine::time_response::{Loading, TimeConfig, simulate};
 
 fn one(m: f64, c: f64, k: f64) -> Matrices {
     let s = |x: f64| DMatrix::from_element(1, 1, x);
-    Matrices {
-        m: s(m),
-        c: s(c),
-        k: s(k),
-        dof_kinds: vec![DofKind::Translational],
-    }
+    Matrices::from_dense(s(m), s(c), s(k), vec![DofKind::Translational])
 }
 
 fn step(n: usize, at: usize, f: f64) -> Loading {
@@ -96,12 +91,12 @@ fn chain(n: usize) -> Matrices {
         kk[(i, i + 1)] -= k;
         kk[(i + 1, i)] -= k;
     }
-    Matrices {
-        m: DMatrix::from_diagonal_element(n, n, m),
-        c: DMatrix::from_diagonal_element(n, n, c),
-        k: kk,
-        dof_kinds: vec![DofKind::Translational; n],
-    }
+    Matrices::from_dense(
+        DMatrix::from_diagonal_element(n, n, m),
+        DMatrix::from_diagonal_element(n, n, c),
+        kk,
+        vec![DofKind::Translational; n],
+    )
 }
 
 #[test]
@@ -139,12 +134,12 @@ proptest! {
         w in prop_oneof![Just(0.0), Just(f64::INFINITY), 0.01..1e4f64],
     ) {
         let take = |o: usize| DMatrix::from_fn(n, n, |i, j| entries[o + i * n + j]);
-        let mats = Matrices {
-            m: DMatrix::from_fn(n, n, |i, j| if i == j { entries[i].abs() } else { 0.0 }),
-            c: take(9),
-            k: take(18),
-            dof_kinds: vec![DofKind::Translational; n],
-        };
+        let mats = Matrices::from_dense(
+            DMatrix::from_fn(n, n, |i, j| if i == j { entries[i].abs() } else { 0.0 }),
+            take(9),
+            take(18),
+            vec![DofKind::Translational; n],
+        );
         let _ = harmonic(&mats, &[], Excitation::Load { dof: 0 }, 1.0, w);
         let _ = harmonic(&mats, &[], Excitation::Load { dof: 7 }, 1.0, 1.0);
         if let Ok(modal) = analyze(&mats, &ModalConfig::default()) {
