@@ -3,9 +3,10 @@
 //! The rest of the engine holds M, C and K as nalgebra-sparse [`CscMatrix`] and everything
 //! else as nalgebra [`DMatrix`]; this module copies them into faer, decomposes, and copies the
 //! results back. The undamped modal solve ([`generalized_symmetric_sparse`]) reads K and a
-//! diagonal M straight from their stored entries, so it never holds them dense. Why faer: nalgebra has no eigenvectors for
-//! non-symmetric matrices and no generalized symmetric solver, and its Schur iteration can fail
-//! to converge on companion-like state matrices; faer has both at about LAPACK speed.
+//! diagonal M straight from their stored entries, so it never holds them dense. Why faer:
+//! nalgebra has no eigenvectors for non-symmetric matrices and no generalized symmetric solver,
+//! and its Schur iteration can fail to converge on companion-like state matrices; faer has both
+//! at about LAPACK speed.
 //!
 //! Every failure (a mass matrix that is not positive definite, a value that is not finite, an
 //! iteration that does not converge) is an [`EigenError`]; the inputs are checked before faer
