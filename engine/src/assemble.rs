@@ -305,6 +305,15 @@ mod tests {
         }
     }
 
+    fn model_of(formulas: Formulas) -> Model {
+        Model {
+            formulas,
+            params: vec![],
+            globals: vec![],
+            systems: vec![],
+        }
+    }
+
     #[test]
     fn two_masses_stamp_symmetric_matrices() {
         let mut f = Formulas::default();
@@ -318,12 +327,7 @@ mod tests {
             element(ElementKind::Damper, End::Ground, End::Dof(1), c1),
         ];
         let sys = system(dofs, elements);
-        let model = Model {
-            formulas: f,
-            params: vec![],
-            globals: vec![],
-            systems: vec![],
-        };
+        let model = model_of(f);
         let mats = assemble(&model, &sys, &[]).unwrap();
         assert_eq!(
             mats.dense_m(),
@@ -349,12 +353,7 @@ mod tests {
             dofs,
             vec![element(ElementKind::Damper, End::Dof(0), End::Dof(1), c0)],
         );
-        let model = Model {
-            formulas: f,
-            params: vec![],
-            globals: vec![],
-            systems: vec![],
-        };
+        let model = model_of(f);
         let mats = assemble(&model, &sys, &[]).unwrap();
         assert_eq!(mats.c.nnz(), 4);
         assert!(mats.c.values().iter().all(|&v| v == 0.0));
@@ -375,12 +374,7 @@ mod tests {
             dofs,
             vec![element(ElementKind::Spring, End::Dof(0), End::Ground, k)],
         );
-        let model = Model {
-            formulas: f,
-            params: vec![],
-            globals: vec![],
-            systems: vec![],
-        };
+        let model = model_of(f);
         let mut asm = Assembler::new(&model, &sys, Limits::default()).unwrap();
         assert_eq!(asm.assemble(&[]).unwrap().dense_k()[(0, 0)], 1000.0);
         assert!((asm.assemble(&[-0.1]).unwrap().dense_k()[(0, 0)] - 900.0).abs() < 1e-12);
@@ -392,12 +386,7 @@ mod tests {
         let mut f = Formulas::default();
         let dofs = vec![dof(&mut f, 1.0), dof(&mut f, -1.0)];
         let sys = system(dofs, vec![]);
-        let model = Model {
-            formulas: f,
-            params: vec![],
-            globals: vec![],
-            systems: vec![],
-        };
+        let model = model_of(f);
         assert_eq!(
             Assembler::new(&model, &sys, Limits { max_dofs: 1 }).err(),
             Some(AssembleError::TooManyDofs { dofs: 2, limit: 1 })
@@ -416,12 +405,7 @@ mod tests {
             dofs,
             vec![element(ElementKind::Spring, End::Dof(3), End::Ground, k)],
         );
-        let model = Model {
-            formulas: f,
-            params: vec![],
-            globals: vec![],
-            systems: vec![],
-        };
+        let model = model_of(f);
         assert_eq!(
             assemble(&model, &sys, &[]).err(),
             Some(AssembleError::BadEnd { element: 0 })
