@@ -202,7 +202,7 @@ pub fn generalized_symmetric_sparse(
 }
 
 /// The entry (i, j) of a sparse matrix, zero where none is stored.
-fn entry_of(a: &CscMatrix<f64>, i: usize, j: usize) -> f64 {
+pub(crate) fn entry_of(a: &CscMatrix<f64>, i: usize, j: usize) -> f64 {
     a.get_entry(i, j).map_or(0.0, |e| e.into_value())
 }
 

@@ -15,6 +15,8 @@
 //! than searched. Everything here is deterministic.
 
 use nalgebra_sparse::{CooMatrix, CscMatrix, SparseEntry, SparseEntryMut};
+
+use crate::eigen::entry_of;
 use sprung_syntax::Span;
 use sprung_syntax::ast::{self, ElementKind, ExprKind, Regime, StatementKind, Subject};
 
@@ -360,9 +362,8 @@ impl Writing {
 /// The range searched: from 10⁻⁴ of the smallest to 10² times the largest critical damping
 /// 2√(K_ii M_ii) of a single coordinate held by its own diagonal stiffness.
 fn bracket(m: &Matrices) -> Option<(f64, f64)> {
-    let diagonal = |a: &CscMatrix<f64>, i: usize| a.get_entry(i, i).map_or(0.0, |e| e.into_value());
     let scales: Vec<f64> = (0..m.dofs())
-        .map(|i| 2.0 * (diagonal(&m.k, i) * diagonal(&m.m, i)).sqrt())
+        .map(|i| 2.0 * (entry_of(&m.k, i, i) * entry_of(&m.m, i, i)).sqrt())
         .filter(|c| c.is_finite() && *c > 0.0)
         .collect();
     let lo = scales.iter().copied().fold(f64::INFINITY, f64::min) * BELOW;
